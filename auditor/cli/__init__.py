@@ -1,0 +1,2 @@
+"""The command line: the only stage that parses arguments, picks exit codes and
+writes to the terminal."""

@@ -1,0 +1,100 @@
+"""Entry point and command dispatch.
+
+Each sub-command lives in its own module ``auditor.cli.cmd_<name>`` exposing
+``register(subparsers)`` and ``run(args) -> int``. Modules are imported only
+when listed in :data:`COMMANDS` and present, so start-up stays light.
+
+Exit codes (the contract CI and git hooks rely on):
+
+* 0 — clean (nothing at or above ``--fail-on``),
+* 1 — findings at or above ``--fail-on``,
+* 2 — bad input or usage (one line on stderr, no traceback),
+* 3 — internal error.
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import os
+import sys
+from collections.abc import Sequence
+from types import ModuleType
+from typing import NoReturn
+
+from auditor import __version__
+from auditor.errors import PadauditError
+
+EXIT_CLEAN = 0
+EXIT_FINDINGS = 1
+EXIT_BAD_INPUT = 2
+EXIT_INTERNAL = 3
+
+#: Sub-commands in the order ``--help`` lists them.
+COMMANDS: tuple[str, ...] = (
+    "audit", "demo", "inspect", "sensors", "estimate", "diff", "hook", "rules",
+)
+
+
+class _Parser(argparse.ArgumentParser):
+    """argparse that reports usage errors as one line and exit code 2."""
+
+    def error(self, message: str) -> NoReturn:
+        sys.stderr.write(f"padaudit: {message}\n")
+        raise SystemExit(EXIT_BAD_INPUT)
+
+
+def _load_commands() -> dict[str, ModuleType]:
+    modules: dict[str, ModuleType] = {}
+    for name in COMMANDS:
+        try:
+            modules[name] = importlib.import_module(f"auditor.cli.cmd_{name}")
+        except ModuleNotFoundError as exc:
+            if exc.name != f"auditor.cli.cmd_{name}":
+                raise
+    return modules
+
+
+def build_parser(modules: dict[str, ModuleType]) -> argparse.ArgumentParser:
+    """The full argument parser with every available sub-command."""
+    parser = _Parser(
+        prog="padaudit",
+        description="Audit capacitive touch electrodes on KiCad boards.",
+    )
+    parser.add_argument("--version", action="version", version=f"padaudit {__version__}")
+    parser.add_argument("--debug", action="store_true",
+                        help="show a traceback on internal errors")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    for module in modules.values():
+        module.register(sub)
+    return parser
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Run padaudit; returns the process exit code."""
+    modules = _load_commands()
+    parser = build_parser(modules)
+    args = parser.parse_args(argv)
+    if args.command is None:
+        parser.print_help()
+        return EXIT_BAD_INPUT
+    try:
+        code: int = modules[args.command].run(args)
+        return code
+    except PadauditError as exc:
+        sys.stderr.write(f"padaudit: {exc}\n")
+        return EXIT_BAD_INPUT
+    except KeyboardInterrupt:
+        sys.stderr.write("padaudit: interrupted\n")
+        return EXIT_INTERNAL
+    except BrokenPipeError:
+        # The reader went away (``padaudit ... | head``); nothing more to say.
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        return EXIT_CLEAN
+    except Exception as exc:  # noqa: BLE001 - last line of defence, by design
+        if getattr(args, "debug", False):
+            raise
+        sys.stderr.write(
+            f"padaudit: internal error: {type(exc).__name__}: {exc} "
+            "(run with --debug for a traceback; please report it)\n")
+        return EXIT_INTERNAL
