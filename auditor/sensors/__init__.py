@@ -1,0 +1,1 @@
+"""Find the sense electrodes, follow their traces, measure their surroundings."""

@@ -1,0 +1,114 @@
+"""Records produced by the sensor stage: what each electrode is, how its
+trace runs and what surrounds it.
+
+These are the contract between ``sensors`` (which fills them), ``rules``
+(which judges them) and ``field`` (which solves them). Lengths in mm, areas in
+mm², board frame (Y down).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Literal
+
+from shapely.geometry.base import BaseGeometry
+
+SensorKind = Literal["button", "slider", "wheel", "proximity", "mutual-tx", "mutual-rx"]
+
+
+@dataclass(frozen=True)
+class TraceRun:
+    """A stretch of sense trace with one cross-section."""
+
+    layer: str
+    width_mm: float
+    length_mm: float
+
+
+@dataclass(frozen=True)
+class Neighbour:
+    """Another net that the sense path runs beside or crosses."""
+
+    net: str
+    parallel_mm: float = 0.0  # length run within the profile's distance
+    min_distance_mm: float = 0.0
+    crossings: int = 0  # crossings on adjacent layers
+    noisy: bool = False
+
+
+@dataclass(frozen=True)
+class SensePath:
+    """The route from the electrode to the controller pin."""
+
+    length_mm: float
+    runs: tuple[TraceRun, ...]
+    vias: int
+    layers: tuple[str, ...]
+    controller_ref: str = ""
+    controller_pin: str = ""
+    series_ref: str = ""
+    series_to_pin_mm: float | None = None  # path length series part -> pin
+    neighbours: tuple[Neighbour, ...] = ()
+    under_electrodes: tuple[str, ...] = ()  # other sensors it passes under/beside
+    complete: bool = True  # False when the path could not be followed to a pin
+
+
+@dataclass(frozen=True)
+class LayerShadow:
+    """Copper under (or over) the electrode on one other layer."""
+
+    layer: str
+    depth_mm: float  # vertical distance from the electrode's layer
+    shadowed_fraction: float  # of the electrode's area, 0..1
+    fill_ratio: float  # local copper coverage of what shadows it, 0..1
+    fill: Literal["solid", "hatched", "none"]
+    nets: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class Surroundings:
+    """What is around one electrode."""
+
+    ground_net: str
+    min_gap_mm: float | None  # to same-layer copper of other nets; None = none near
+    typical_gap_mm: float | None  # median gap around the perimeter
+    ground_fill_ratio: float  # coverage of the coplanar ground near the pad, 0..1
+    shadows: tuple[LayerShadow, ...] = ()
+    nearest_sensor: str = ""
+    nearest_sensor_mm: float | None = None
+    noisy_parts: tuple[tuple[str, float], ...] = ()  # (ref, distance mm)
+    floating_copper: tuple[tuple[float, float, float], ...] = ()  # (x, y, distance mm)
+    ground_area_mm2: float = 0.0  # the device ground's total copper area
+
+
+@dataclass(frozen=True)
+class Sensor:
+    """One sense electrode.
+
+    ``name`` is unique on the board and stable across re-saves (reference or
+    net based). ``group`` and ``index`` order slider/wheel segments.
+    """
+
+    name: str
+    kind: SensorKind
+    nets: tuple[str, ...]
+    refs: tuple[str, ...]
+    layer: str
+    area_mm2: float
+    x_mm: float
+    y_mm: float
+    reason: str
+    geometry: BaseGeometry
+    group: str = ""
+    index: int = 0
+    exposed: bool = False  # solder-mask opening over the copper
+    pasted: bool = False
+    path: SensePath | None = None
+    surroundings: Surroundings | None = None
+
+    @property
+    def equivalent_diameter_mm(self) -> float:
+        """Diameter of the disk with the same area."""
+        import math
+
+        return 2.0 * math.sqrt(max(self.area_mm2, 0.0) / math.pi)
