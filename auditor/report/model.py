@@ -1,0 +1,107 @@
+"""The report object every back-end renders.
+
+Built once per run by the pipeline after ``decide``; reporters (text, json,
+sarif, junit, markdown, svg) are interchangeable views of it and never compute
+anything of their own beyond layout.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from auditor.rules.finding import Finding, Severity
+from auditor.sensors.model import Sensor
+
+
+@dataclass(frozen=True)
+class PadMetrics:
+    """Field-solve results for one sensor, in pF (ratio unitless)."""
+
+    cp_pad_pf: float
+    cp_trace_pf: float
+    cp_total_pf: float
+    delta_c_pf: float
+    delta_ratio: float
+    method: str = "quick"  # quick (axisymmetric) or precise (3-D)
+    notes: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class SensorResult:
+    """A sensor with its metrics, rank (1 = most sensitive) and verdict."""
+
+    sensor: Sensor
+    metrics: PadMetrics | None
+    rank: int
+    verdict: str  # "ok", "weak", "fail", "unsolved"
+
+
+@dataclass(frozen=True)
+class DecidedFinding:
+    """A finding after profile, overrides, waivers and baseline.
+
+    ``severity`` is the effective severity; ``waived`` carries the waiver's
+    reason when a waiver matched; ``in_baseline`` marks findings already
+    accepted in a baseline file (shown, never failing).
+    """
+
+    finding: Finding
+    severity: Severity
+    waived: str = ""
+    in_baseline: bool = False
+
+    @property
+    def counts_for_gate(self) -> bool:
+        """True when this finding may fail the run."""
+        return not self.waived and not self.in_baseline
+
+
+@dataclass(frozen=True)
+class RuleInfo:
+    """Metadata of a rule, for reporters that list rules (SARIF, JUnit)."""
+
+    rule_id: str
+    title: str
+    rationale: str
+    fix: str
+    default_severity: Severity
+
+
+@dataclass(frozen=True)
+class RunInfo:
+    """What was run on what: the header of every report."""
+
+    board_path: str
+    board_version: int
+    tool_version: str
+    profile: str
+    overlay: str  # e.g. "2.0 mm acrylic (er 3.3)"
+    touch_side: str
+    power: str
+    fail_on: Severity
+
+
+@dataclass(frozen=True)
+class Report:
+    """Everything a reporter needs. Ordered deterministically by the pipeline."""
+
+    info: RunInfo
+    sensors: tuple[SensorResult, ...]
+    findings: tuple[DecidedFinding, ...]
+    rules: tuple[RuleInfo, ...]
+    read_warnings: tuple[str, ...] = ()  # what the reader skipped or guessed
+    stale_waivers: tuple[str, ...] = ()
+    stale_baseline: tuple[str, ...] = ()
+    rule_errors: tuple[tuple[str, str], ...] = ()  # (rule id, error) for crashed rules
+    cautions: tuple[str, ...] = ()  # safety notes (mains etc.)
+
+    @property
+    def failing(self) -> tuple[DecidedFinding, ...]:
+        """Findings at or above ``fail_on`` that are neither waived nor baselined."""
+        return tuple(f for f in self.findings
+                     if f.counts_for_gate and f.severity >= self.info.fail_on)
+
+    @property
+    def exit_code(self) -> int:
+        """0 clean, 1 failing findings (or a crashed rule), per the CLI contract."""
+        return 1 if self.failing or self.rule_errors else 0
