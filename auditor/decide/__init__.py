@@ -1,1 +1,8 @@
-"""decide stage."""
+"""decide: the one place that decides what is shown and what fails
+(profile levels, severity overrides, waivers, baseline)."""
+
+from auditor.decide.policy import Decision, Policy, decide, finding_order, mark_baseline
+from auditor.decide.verdict import sensitivity_ranks, sensor_verdict
+
+__all__ = ["Decision", "Policy", "decide", "finding_order", "mark_baseline",
+           "sensitivity_ranks", "sensor_verdict"]

@@ -14,6 +14,7 @@ from shapely import STRtree
 from shapely.geometry.base import BaseGeometry
 from shapely.ops import unary_union
 
+from auditor.model.graph import TrackGraph
 from auditor.model.items import (
     CopperShape,
     Footprint,
@@ -149,6 +150,48 @@ class Board:
 
     @cached_property
     def _union_cache(self) -> dict[tuple[str, str], BaseGeometry]:
+        return {}
+
+    def attached_copper(self, pad: Pad) -> tuple[CopperItem, ...]:
+        """Net-less copper graphics touching ``pad`` on its layers, directly or
+        through other net-less graphics: in practice part of the pad's
+        electrode (kicad-format.md §0.9, §11)."""
+        found: list[CopperItem] = []
+        for shape in pad.copper:
+            items = self.items_on(shape.layer)
+            tree = self.spatial_index(shape.layer)
+            frontier = [shape.geometry]
+            seen: set[int] = set()
+            while frontier:
+                geom = frontier.pop()
+                for index in tree.query(geom, predicate="intersects"):
+                    item = items[int(index)]
+                    if int(index) in seen or item.net or item.source != "graphic":
+                        continue
+                    seen.add(int(index))
+                    found.append(item)
+                    frontier.append(item.geometry)
+        return tuple(found)
+
+    def track_graph(self, net: str) -> TrackGraph:
+        """The net's track graph (path lengths along tracks and vias; cached)."""
+        cache = self._graph_cache
+        if net not in cache:
+            tracks, vias = self._routing_by_net.get(net, ([], []))
+            cache[net] = TrackGraph(net, tracks, vias)
+        return cache[net]
+
+    @cached_property
+    def _routing_by_net(self) -> dict[str, tuple[list[Track], list[Via]]]:
+        out: dict[str, tuple[list[Track], list[Via]]] = {}
+        for tr in self.tracks:
+            out.setdefault(tr.net, ([], []))[0].append(tr)
+        for via in self.vias:
+            out.setdefault(via.net, ([], []))[1].append(via)
+        return out
+
+    @cached_property
+    def _graph_cache(self) -> dict[str, TrackGraph]:
         return {}
 
     def nets_on(self, layer: str) -> tuple[str, ...]:

@@ -22,7 +22,7 @@ Side = Literal["front", "back"]
 FillMode = Literal["solid", "hatched", "none"]
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class Point:
     """A point on the board in mm (Y down)."""
 
@@ -30,7 +30,7 @@ class Point:
     y: float
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class PadShape:
     """One copper layer's shape of a pad (padstacks may differ per layer)."""
 
@@ -121,7 +121,7 @@ class Footprint:
         return None
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class Track:
     """A straight segment or a three-point arc of track."""
 
@@ -135,7 +135,7 @@ class Track:
     mid: Point | None = None  # set for arcs
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, slots=True)
 class Via:
     """A via; ``layers`` lists every copper layer it spans, in stack order."""
 

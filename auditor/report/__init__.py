@@ -1,1 +1,10 @@
-"""report stage."""
+"""report stage: interchangeable views of one :class:`~auditor.report.model.Report`.
+
+* :func:`auditor.report.render.render` — ``text`` (rich), ``json``, ``sarif``,
+  ``junit``, ``markdown`` to a stream;
+* :func:`auditor.report.svg.write_svg` — the board picture;
+* :mod:`auditor.report.diff` — comparing two reports (``padaudit diff``,
+  ``audit --against``).
+
+Reporters lay out what the report holds; they compute nothing of their own.
+"""

@@ -7,10 +7,15 @@ anything of their own beyond layout.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
+from auditor.model.board import Board
 from auditor.rules.finding import Finding, Severity
 from auditor.sensors.model import Sensor
+
+if TYPE_CHECKING:  # the solver package is heavy to import; reporters need only the records
+    from auditor.field.precise.results import PreciseExtras
 
 
 @dataclass(frozen=True)
@@ -79,6 +84,10 @@ class RunInfo:
     touch_side: str
     power: str
     fail_on: Severity
+    #: Largest allowed loss of a pad's ΔC/Cp ratio between two revisions, as a
+    #: fraction (profile threshold ``max_ratio_loss``; 0.2 is common practice,
+    #: no source). Read by ``padaudit diff`` and ``audit --against``.
+    max_ratio_loss: float = 0.2
 
 
 @dataclass(frozen=True)
@@ -94,6 +103,10 @@ class Report:
     stale_baseline: tuple[str, ...] = ()
     rule_errors: tuple[tuple[str, str], ...] = ()  # (rule id, error) for crashed rules
     cautions: tuple[str, ...] = ()  # safety notes (mains etc.)
+    #: The board itself, for the picture (``--svg``); not part of equality.
+    board: Board | None = field(default=None, compare=False, repr=False)
+    #: Precise-mode extras (coupling table, slider scans) when ``--precise`` ran.
+    precise: PreciseExtras | None = None
 
     @property
     def failing(self) -> tuple[DecidedFinding, ...]:

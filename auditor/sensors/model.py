@@ -34,6 +34,7 @@ class Neighbour:
     min_distance_mm: float = 0.0
     crossings: int = 0  # crossings on adjacent layers
     noisy: bool = False
+    sense: bool = False  # the net is (part of) another electrode's sense path
 
 
 @dataclass(frozen=True)
@@ -51,6 +52,7 @@ class SensePath:
     neighbours: tuple[Neighbour, ...] = ()
     under_electrodes: tuple[str, ...] = ()  # other sensors it passes under/beside
     complete: bool = True  # False when the path could not be followed to a pin
+    nets: tuple[str, ...] = ()  # nets along the path: electrode's, then after the series part
 
 
 @dataclass(frozen=True)
@@ -79,6 +81,8 @@ class Surroundings:
     noisy_parts: tuple[tuple[str, float], ...] = ()  # (ref, distance mm)
     floating_copper: tuple[tuple[float, float, float], ...] = ()  # (x, y, distance mm)
     ground_area_mm2: float = 0.0  # the device ground's total copper area
+    min_ground_gap_mm: float | None = None  # as min_gap_mm, to the device ground only
+    typical_ground_gap_mm: float | None = None
 
 
 @dataclass(frozen=True)
@@ -105,6 +109,7 @@ class Sensor:
     pasted: bool = False
     path: SensePath | None = None
     surroundings: Surroundings | None = None
+    footprint_uids: tuple[str, ...] = ()  # footprints with copper in the electrode
 
     @property
     def equivalent_diameter_mm(self) -> float:

@@ -1,0 +1,47 @@
+"""``padaudit audit BOARD``: run every check and print the findings.
+
+Exit codes: 0 clean, 1 findings at or above ``--fail-on`` (default error) or
+a crashed rule, 2 bad input or usage, 3 internal error.
+"""
+
+from __future__ import annotations
+
+import argparse
+
+from auditor.cli.report_options import add_report_options, emit
+from auditor.config import POWER_CHOICES, TOUCH_SIDES
+from auditor.pipeline import options_from_args, run_audit
+
+
+def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
+    """Add the ``audit`` sub-command."""
+    parser = subparsers.add_parser(
+        "audit", help="check a board's touch electrodes against the layout rules",
+        description="Read a KiCad board, find its touch electrodes, check them against the "
+                    "profile's rules and report. Options override the configuration file "
+                    "([tool.padaudit] in pyproject.toml or padaudit.toml, found by walking "
+                    "up from the board's folder).")
+    parser.add_argument("board", metavar="BOARD", help="the .kicad_pcb file")
+    parser.add_argument("--config", metavar="FILE",
+                        help="configuration file to use instead of searching for one")
+    parser.add_argument("--profile", metavar="NAME",
+                        help="rule profile: default, proximity, mutual, strict, or a .toml "
+                             "file")
+    parser.add_argument("--overlay", metavar="MM:MATERIAL|MM:ER",
+                        help="cover over the electrodes, e.g. 2:acrylic or 1.5:3.1")
+    parser.add_argument("--power", choices=POWER_CHOICES,
+                        help="how the product is powered (sets the ground-to-earth model)")
+    parser.add_argument("--touch-side", choices=TOUCH_SIDES,
+                        help="which side of the board faces the finger")
+    parser.add_argument("--fail-on", choices=("error", "warning", "info"),
+                        help="lowest severity that fails the run (default: error)")
+    parser.add_argument("--no-solve", action="store_true",
+                        help="skip the field solve: layout rules only, every electrode "
+                             "reported unsolved")
+    add_report_options(parser)
+
+
+def run(args: argparse.Namespace) -> int:
+    """Audit the board and report; returns the exit code."""
+    report = run_audit(args.board, options_from_args(args))
+    return emit(report, args)

@@ -1,0 +1,52 @@
+"""``padaudit demo``: the full audit on the bundled, invented front-panel board.
+
+The demo board has layout problems planted on purpose (see
+``fixtures/demo/README.md``), so its audit finds errors. ``demo`` shows them
+and exits 0: it is a demonstration, not a gate. ``padaudit audit`` on the same
+file exits 1, as a merge gate should.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+
+from auditor.cli.main import EXIT_CLEAN, EXIT_FINDINGS
+from auditor.cli.report_options import add_report_options, emit
+from auditor.demo import demo_board_path, demo_config_path
+from auditor.pipeline import options_from_args, run_audit
+
+
+def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
+    """Add the ``demo`` sub-command."""
+    parser = subparsers.add_parser(
+        "demo", help="audit the bundled demo board (an invented room panel)",
+        description="Run the full audit on the demo board that ships with padaudit: a "
+                    "wall-mounted room panel behind 2 mm acrylic with six buttons, a "
+                    "five-segment slider and a proximity loop, with layout problems "
+                    "planted on purpose. Exits 0 even though it finds problems.")
+    parser.add_argument("--path", action="store_true",
+                        help="print where the demo board is installed and stop "
+                             "(copy it to try the other commands)")
+    add_report_options(parser)
+
+
+def run(args: argparse.Namespace) -> int:
+    """Audit the demo board; returns 0 unless something went wrong."""
+    board = demo_board_path()
+    if args.path:
+        print(board)
+        return EXIT_CLEAN
+    # The demo's configuration sits beside the board; name it explicitly so a
+    # padaudit.toml in the user's working folder cannot change the demo.
+    args.config = str(demo_config_path())
+    report = run_audit(str(board), options_from_args(args))
+    code = emit(report, args)
+    if code == EXIT_FINDINGS:
+        if args.format == "text" and not args.output:
+            sys.stdout.write(
+                "\nThis is the demo: the problems above were planted on purpose. "
+                "`padaudit audit` would exit 1 here and stop a merge.\n"
+                f"Copy the board to experiment: padaudit demo --path  ->  {board}\n")
+        return EXIT_CLEAN
+    return code

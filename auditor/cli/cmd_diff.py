@@ -1,0 +1,94 @@
+"""``padaudit diff OLD NEW``: compare two boards (files, or ``REV:path``).
+
+Per pad: the change of Cp, ΔC and ΔC/Cp in percent; the findings that are
+new and the ones that were fixed. Exit 1 when a pad loses more than
+``max_ratio_loss`` (profile; ``--max-ratio-loss`` overrides) of its ratio or
+a new finding fails the gate.
+"""
+
+from __future__ import annotations
+
+import argparse
+import contextlib
+import os
+import sys
+from collections.abc import Iterator
+from pathlib import Path
+
+from auditor.cli.audit_runner import AuditFn, auditor_for, shown_as
+from auditor.cli.colour import COLOUR_CHOICES, use_colour
+from auditor.errors import UsageError
+from auditor.report.diff import compare_reports
+from auditor.report.diff_render import DIFF_FORMATS, render_diff
+from auditor.report.model import Report
+
+
+def _fraction(text: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"not a number: {text!r}") from None
+    if not 0.0 <= value <= 1.0:
+        raise argparse.ArgumentTypeError(f"{text}: give a fraction from 0 to 1 (0.2 = 20 %)")
+    return value
+
+
+def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
+    """Add the ``diff`` sub-command."""
+    parser = subparsers.add_parser(
+        "diff", help="compare two boards or revisions pad by pad",
+        description="Compare two boards pad by pad. Each side is a .kicad_pcb file or "
+                    "REV:path for the board at a git revision (e.g. HEAD~1:panel.kicad_pcb).")
+    parser.add_argument("old", metavar="OLD")
+    parser.add_argument("new", metavar="NEW")
+    parser.add_argument("--max-ratio-loss", type=_fraction, metavar="FRACTION",
+                        help="fail when a pad loses more than this share of its ΔC/Cp "
+                             "(default: the profile's max_ratio_loss)")
+    parser.add_argument("--format", choices=DIFF_FORMATS, default="text")
+    parser.add_argument("--output", metavar="FILE", help="write the comparison to FILE")
+    parser.add_argument("--color", "--colour", dest="color", choices=COLOUR_CHOICES,
+                        default="auto")
+    parser.add_argument("--config", metavar="FILE",
+                        help="configuration file for both sides instead of searching for one")
+    parser.add_argument("--profile", metavar="NAME", help="rule profile used for both sides")
+    parser.add_argument("--fail-on", dest="fail_on", choices=("error", "warning", "info"),
+                        help="severity at which a new finding fails (default: configuration, "
+                             "else error)")
+
+
+@contextlib.contextmanager
+def _side(spec: str) -> Iterator[tuple[str, str]]:
+    """Yield ``(path to audit, label)`` for ``FILE`` or ``REV:path`` (the path
+    relative to the current folder, as for the file case)."""
+    if Path(spec).is_file():
+        yield spec, spec
+        return
+    rev, sep, path = spec.partition(":")
+    if not sep or not rev or not path:
+        raise UsageError(f"{spec}: no such file (for a git revision write REV:path)")
+    from auditor.gitrev import board_at
+
+    with board_at(path, rev) as copy:
+        yield str(copy), spec
+
+
+def _audited(audit: AuditFn, spec: str) -> Report:
+    with _side(spec) as (path, label):
+        return shown_as(audit(path), label)
+
+
+def run(args: argparse.Namespace) -> int:
+    """Run ``padaudit diff``."""
+    audit = auditor_for(args)
+    diff = compare_reports(_audited(audit, args.old), _audited(audit, args.new),
+                           args.max_ratio_loss)
+    if args.output:
+        try:
+            with open(args.output, "w", encoding="utf-8") as stream:
+                render_diff(diff, args.format, stream)
+        except OSError as exc:
+            raise UsageError(f"{args.output}: cannot write: {exc.strerror or exc}") from None
+    else:
+        colour = use_colour(args.color, sys.stdout, os.environ) and args.format == "text"
+        render_diff(diff, args.format, sys.stdout, colour)
+    return diff.exit_code

@@ -1,0 +1,38 @@
+"""``padaudit rules [ID]``: list the rules, or explain one."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+
+from auditor.errors import UsageError
+from auditor.rules.docs import rule_text
+from auditor.rules.profiles import load_profile
+from auditor.rules.registry import all_rules
+
+
+def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
+    """Add the ``rules`` sub-command."""
+    parser = subparsers.add_parser(
+        "rules", help="list the layout rules, or explain one",
+        description="Without an id: every rule with its severity and title. With an id: "
+                    "its rationale, fix advice and thresholds with their origin.")
+    parser.add_argument("rule_id", nargs="?", metavar="ID", help="a rule id")
+    parser.add_argument("--profile", metavar="NAME", default="default",
+                        help="profile whose levels and thresholds to show (default: default)")
+
+
+def run(args: argparse.Namespace) -> int:
+    """Print the catalogue or one rule."""
+    profile = load_profile(args.profile)
+    specs = {spec.rule_id: spec for spec in all_rules()}
+    if args.rule_id is None:
+        width = max(len(k) for k in specs)
+        for rule_id, spec in specs.items():
+            level = profile.level_of(rule_id) or spec.severity.label
+            sys.stdout.write(f"{rule_id:<{width}}  {level:<7}  {spec.title}\n")
+        return 0
+    if args.rule_id not in specs:
+        raise UsageError(f"unknown rule {args.rule_id!r}; `padaudit rules` lists them")
+    sys.stdout.write(rule_text(specs[args.rule_id], profile))
+    return 0

@@ -1,0 +1,83 @@
+"""Uniform square cells shared by every level of one solve."""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+import shapely
+from numpy.typing import NDArray
+
+from auditor.errors import UsageError
+
+IntArray = NDArray[np.int64]
+FloatArray = NDArray[np.float64]
+
+
+@dataclass(frozen=True)
+class CellGrid:
+    """``nx`` by ``ny`` square cells of side ``cell_mm`` from ``(x0_mm, y0_mm)``."""
+
+    x0_mm: float
+    y0_mm: float
+    cell_mm: float
+    nx: int
+    ny: int
+
+    def centres(self) -> tuple[FloatArray, FloatArray]:
+        """Cell-centre coordinates, arrays of shape ``(nx, ny)``."""
+        x = self.x0_mm + (np.arange(self.nx) + 0.5) * self.cell_mm
+        y = self.y0_mm + (np.arange(self.ny) + 0.5) * self.cell_mm
+        gx, gy = np.meshgrid(x, y, indexing="ij")
+        return gx, gy
+
+
+def grid_around(geometries: list[shapely.Geometry], cell_mm: float) -> CellGrid:
+    """Smallest grid of ``cell_mm`` cells covering all geometries.
+
+    The grid starts at the lower-left corner of the joint bounding box, so a
+    rectangle whose sides are multiples of ``cell_mm`` is meshed exactly.
+    """
+    if not cell_mm > 0.0:
+        raise UsageError(f"cell size must be > 0 mm, got {cell_mm}")
+    bounds = np.array([g.bounds for g in geometries])
+    x0, y0 = bounds[:, 0].min(), bounds[:, 1].min()
+    width, height = bounds[:, 2].max() - x0, bounds[:, 3].max() - y0
+    nx = max(math.ceil(width / cell_mm - 1e-9), 1)
+    ny = max(math.ceil(height / cell_mm - 1e-9), 1)
+    return CellGrid(float(x0), float(y0), cell_mm, nx, ny)
+
+
+def rasterised(geometry: shapely.Geometry, grid: CellGrid) -> IntArray:
+    """Flat indices of the cells whose centre lies inside ``geometry``.
+
+    Centre sampling follows a curved edge with stair-steps; the resulting
+    error on disks is measured in the tests and the bench.
+    """
+    gx, gy = grid.centres()
+    inside = shapely.contains_xy(geometry, gx.ravel(), gy.ravel())
+    result: IntArray = np.flatnonzero(inside).astype(np.int64)
+    return result
+
+
+def covered_fractions(geometry: shapely.Geometry, grid: CellGrid) -> FloatArray:
+    """Fraction of each cell's area inside ``geometry``, flat array of ``nx * ny``.
+
+    Cells whose four corners agree are taken as fully inside or outside; only
+    the mixed ones are intersected exactly. Like centre sampling, this misses
+    holes or slivers narrower than a cell that touch no corner.
+    """
+    x = grid.x0_mm + np.arange(grid.nx + 1) * grid.cell_mm
+    y = grid.y0_mm + np.arange(grid.ny + 1) * grid.cell_mm
+    corner_x, corner_y = np.meshgrid(x, y, indexing="ij")
+    corners = shapely.contains_xy(geometry, corner_x.ravel(), corner_y.ravel())
+    corners = corners.reshape(grid.nx + 1, grid.ny + 1).astype(np.int8)
+    count = corners[:-1, :-1] + corners[1:, :-1] + corners[:-1, 1:] + corners[1:, 1:]
+    fractions = (count == 4).astype(float).ravel()
+    mixed = np.flatnonzero(((count > 0) & (count < 4)).ravel())
+    ix, iy = mixed // grid.ny, mixed % grid.ny
+    boxes = shapely.box(x[ix], y[iy], x[ix + 1], y[iy + 1])
+    areas = shapely.area(shapely.intersection(geometry, boxes))
+    fractions[mixed] = np.clip(areas / (grid.cell_mm * grid.cell_mm), 0.0, 1.0)
+    return np.asarray(fractions, dtype=float)

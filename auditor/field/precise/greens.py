@@ -1,0 +1,111 @@
+"""Static Green's function of a layered medium, tabulated in the radius.
+
+The potential on level ``i`` of a point charge ``q`` on level ``j`` is
+
+    Phi = q / (2 pi eps0) * [A_ij / sqrt(rho^2 + d_ij^2) + R_ij(rho)]
+
+where ``A_ij exp(-k d_ij)`` is the large-``k`` limit of the spectral potential
+(handled in closed form, so the singular part is exact) and
+``R_ij(rho) = int_0^inf J0(k rho) (g_ij(k) - A_ij exp(-k d_ij)) dk`` is a smooth
+remainder, computed by composite Gauss-Legendre quadrature and tabulated on a
+grid dense near the axis (Sommerfeld integral; physics.md section 1.11).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from numpy.typing import NDArray
+from scipy.interpolate import CubicSpline
+from scipy.special import j0
+
+from auditor.field.precise.medium import (
+    LayeredMedium,
+    high_k_coefficients,
+    level_separations_mm,
+    spectral_potential,
+)
+
+FloatArray = NDArray[np.float64]
+
+_GAUSS_ORDER = 16
+_TABLE_POINTS = 320
+# exp(-38) ~ 3e-17: the remainder below this is under double precision.
+_DECAY_EXPONENT = 38.0
+
+
+@dataclass(frozen=True)
+class LayeredGreens:
+    """Tabulated Green's function for all level pairs of one medium.
+
+    Build with :func:`tabulate_greens`. ``remainder`` evaluates ``R_ij``.
+    """
+
+    medium: LayeredMedium
+    direct: FloatArray
+    separations_mm: FloatArray
+    max_radius_mm: float
+    splines: tuple[tuple[CubicSpline | None, ...], ...]
+    radius_scale_mm: float
+
+    def remainder(self, target: int, source: int, radius_mm: FloatArray) -> FloatArray:
+        """``R_ij(rho)`` in 1/mm; zero where the medium has no layers."""
+        spline = self.splines[target][source]
+        if spline is None:
+            return np.zeros_like(radius_mm)
+        u = np.arcsinh(np.asarray(radius_mm) / self.radius_scale_mm)
+        values: FloatArray = spline(u)
+        return values
+
+    def potential(self, target: int, source: int, radius_mm: FloatArray) -> FloatArray:
+        """``4 pi eps0 Phi / q`` in 1/mm for a point charge (zero radius excluded)."""
+        rho = np.asarray(radius_mm, dtype=float)
+        direct = self.direct[target, source] / np.hypot(rho, self.separations_mm[target, source])
+        result: FloatArray = 2.0 * (direct + self.remainder(target, source, rho))
+        return result
+
+
+def tabulate_greens(medium: LayeredMedium, max_radius_mm: float) -> LayeredGreens:
+    """Tabulate ``R_ij`` for ``0 <= rho <= max_radius_mm`` on every level pair."""
+    direct = high_k_coefficients(medium)
+    separations = level_separations_mm(medium)
+    scale = medium.shortest_layer_mm()
+    count = medium.level_count
+    if not medium.layers:
+        empty = tuple(tuple(None for _ in range(count)) for _ in range(count))
+        return LayeredGreens(medium, direct, separations, max_radius_mm, empty, scale)
+    u_grid = np.linspace(0.0, np.arcsinh(max_radius_mm / scale), _TABLE_POINTS)
+    radii = scale * np.sinh(u_grid)
+    k, weights = _wavenumber_quadrature(medium, max_radius_mm)
+    spectral = spectral_potential(medium, k)
+    bessel_weights = j0(np.outer(radii, k)) * weights
+    rows: list[tuple[CubicSpline | None, ...]] = []
+    for target in range(count):
+        row: list[CubicSpline | None] = []
+        for source in range(count):
+            remainder_k = spectral[:, target, source] - direct[target, source] * np.exp(
+                -k * separations[target, source])
+            values = bessel_weights @ remainder_k
+            row.append(CubicSpline(u_grid, values, bc_type=((1, 0.0), "not-a-knot")))
+        rows.append(tuple(row))
+    return LayeredGreens(medium, direct, separations, max_radius_mm, tuple(rows), scale)
+
+
+def _wavenumber_quadrature(medium: LayeredMedium,
+                           max_radius_mm: float) -> tuple[FloatArray, FloatArray]:
+    """Composite Gauss-Legendre nodes on ``0 < k < k_max``.
+
+    Panels are narrow enough for a few J0 oscillations at the largest radius and
+    for the poles of coth at ``k = i pi m / t`` of the thickest layer.
+    """
+    k_max = _DECAY_EXPONENT / (2.0 * medium.shortest_layer_mm())
+    width = min(4.0 / max(max_radius_mm, 1e-9), 1.0 / medium.thickest_layer_mm())
+    panels = max(int(np.ceil(k_max / width)), 1)
+    edges = np.linspace(0.0, k_max, panels + 1)
+    nodes, weights = np.polynomial.legendre.leggauss(_GAUSS_ORDER)
+    half = 0.5 * (edges[1:] - edges[:-1])
+    mid = 0.5 * (edges[1:] + edges[:-1])
+    k = (mid[:, None] + half[:, None] * nodes[None, :]).ravel()
+    w = (half[:, None] * weights[None, :]).ravel()
+    return k, w

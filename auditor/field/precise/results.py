@@ -1,0 +1,89 @@
+"""What precise mode adds to a report: electrode coupling and slider response.
+
+Plain frozen records (no matrices, no geometry) so reporters and rules can
+read them without the solver; values in pF and mm.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+
+@dataclass(frozen=True)
+class CrosstalkPair:
+    """Coupling between two electrodes: ``-C_ij`` and its share of each Cp.
+
+    ``fraction_of_first`` is ``-C_ij / C_ii`` (``C_ii`` the first pad's
+    Maxwell self term with every other conductor at 0 V).
+    """
+
+    first: str
+    second: str
+    crosstalk_pf: float
+    fraction_of_first: float
+    fraction_of_second: float
+
+    @property
+    def worst_fraction(self) -> float:
+        """The larger of the two shares."""
+        return max(self.fraction_of_first, self.fraction_of_second)
+
+
+@dataclass(frozen=True)
+class CouplingTable:
+    """Crosstalk among all electrodes of one board (row i: what couples into i)."""
+
+    names: tuple[str, ...]
+    crosstalk_pf: tuple[tuple[float, ...], ...]
+    fraction_of_cp: tuple[tuple[float, ...], ...]
+    cell_mm: float
+
+    def pairs(self) -> tuple[CrosstalkPair, ...]:
+        """Every unordered pair once, in name order."""
+        out = []
+        for i, first in enumerate(self.names):
+            for j in range(i + 1, len(self.names)):
+                out.append(CrosstalkPair(first, self.names[j], self.crosstalk_pf[i][j],
+                                         self.fraction_of_cp[i][j],
+                                         self.fraction_of_cp[j][i]))
+        return tuple(out)
+
+
+@dataclass(frozen=True)
+class SegmentScan:
+    """A finger stepped along a slider or wheel group (see ``SliderScan``).
+
+    ``delta_pf[n][i]``: segment ``i``'s change at ``positions_mm[n]``;
+    ``estimated_mm[n]`` the interpolated position (``nan`` in a dead zone);
+    ``linearity_mm`` the worst ``|estimated - true|`` between the first and
+    last segment centres (whole turn on a wheel).
+    """
+
+    group: str
+    kind: str
+    segment_names: tuple[str, ...]
+    segment_centres_mm: tuple[float, ...]
+    positions_mm: tuple[float, ...]
+    delta_pf: tuple[tuple[float, ...], ...]
+    estimated_mm: tuple[float, ...]
+    linearity_mm: float
+    dead_zones_mm: tuple[tuple[float, float], ...]
+    reversals_mm: tuple[float, ...]
+    step_mm: float
+    cell_mm: float
+    x_mm: float = 0.0  # where to point at on the board (the group's centre)
+    y_mm: float = 0.0
+
+    @property
+    def monotonic(self) -> bool:
+        """True when the estimated position never steps back along the path."""
+        return not self.reversals_mm
+
+
+@dataclass(frozen=True)
+class PreciseExtras:
+    """Board-level precise results: coupling table and scans, with notes."""
+
+    coupling: CouplingTable | None = None
+    scans: tuple[SegmentScan, ...] = ()
+    notes: tuple[str, ...] = ()

@@ -1,0 +1,135 @@
+"""Boards as they are at a git revision or in the index (staged).
+
+git runs with argument lists, never through a shell. A board at a revision
+is written into a private temporary folder that mirrors the repository
+layout, together with what the audit reads beside it at that revision (the
+``.kicad_pro`` project file of the same name, ``padaudit.toml`` and
+``pyproject.toml`` in its folder and every folder above it), so that the
+old board is judged with the old configuration. The working tree and git's
+state are never touched.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import subprocess
+import tempfile
+from collections.abc import Iterator, Sequence
+from dataclasses import dataclass
+from pathlib import Path, PurePosixPath
+
+from auditor.errors import UsageError
+
+#: Files beside or above a board that change how it is audited.
+CONFIG_NAMES: tuple[str, ...] = ("padaudit.toml", "pyproject.toml")
+
+
+def run_git(args: Sequence[str], cwd: str | Path) -> bytes:
+    """Run ``git *args`` in ``cwd`` and return its stdout.
+
+    Raises
+    ------
+    UsageError
+        When git is missing or fails; carries git's first line of complaint.
+    """
+    try:
+        done = subprocess.run(["git", *args], cwd=cwd, capture_output=True, check=False)
+    except FileNotFoundError:
+        raise UsageError("git is not installed or not on PATH") from None
+    if done.returncode != 0:
+        lines = done.stderr.decode("utf-8", "replace").strip().splitlines()
+        reason = lines[0] if lines else f"exit code {done.returncode}"
+        raise UsageError(f"git {' '.join(args[:1])}: {reason}")
+    return done.stdout
+
+
+def check_revision(rev: str) -> str:
+    """Refuse revisions git could take for options or that hold a path."""
+    if not rev or rev.startswith("-") or ":" in rev or any(c.isspace() for c in rev):
+        raise UsageError(f"not a usable git revision: {rev!r}")
+    return rev
+
+
+@dataclass(frozen=True)
+class RepoPath:
+    """A file inside a repository: its root and its path from there (posix)."""
+
+    root: Path
+    path: PurePosixPath
+
+
+def locate(file: str | Path) -> RepoPath:
+    """The repository holding ``file`` and the file's path inside it."""
+    absolute = Path(file).resolve()
+    top = run_git(["rev-parse", "--show-toplevel"], absolute.parent).decode().strip()
+    root = Path(top).resolve()
+    try:
+        relative = absolute.relative_to(root)
+    except ValueError:
+        raise UsageError(f"{file}: not inside the git repository at {root}") from None
+    return RepoPath(root, PurePosixPath(relative.as_posix()))
+
+
+def blob(root: Path, rev: str, path: PurePosixPath) -> bytes | None:
+    """Contents of ``path`` at ``rev`` (``""`` = the index), ``None`` if absent."""
+    spec = f"{rev}:{path}" if rev else f":{path}"
+    done = subprocess.run(["git", "cat-file", "-e", spec], cwd=root, capture_output=True,
+                          check=False)
+    if done.returncode != 0:
+        return None
+    return run_git(["show", spec], root)
+
+
+def companions(path: PurePosixPath) -> list[PurePosixPath]:
+    """Files read beside a board: its project file and configuration above it."""
+    out = [path.with_suffix(".kicad_pro")]
+    folder = path.parent
+    while True:
+        out += [folder / name for name in CONFIG_NAMES]
+        if folder == folder.parent:
+            return out
+        folder = folder.parent
+
+
+@contextlib.contextmanager
+def board_at(file: str | Path, rev: str) -> Iterator[Path]:
+    """Yield a temporary copy of board ``file`` at ``rev`` (``""``: staged).
+
+    Raises
+    ------
+    UsageError
+        When the board does not exist at that revision.
+    """
+    if rev:
+        check_revision(rev)
+    where = locate(file)
+    content = blob(where.root, rev, where.path)
+    if content is None:
+        shown = f"revision {rev}" if rev else "the index (not staged)"
+        raise UsageError(f"{where.path}: not found at {shown}")
+    with tempfile.TemporaryDirectory(prefix="padaudit-rev-") as tmp:
+        mirror = Path(tmp)
+        for extra in companions(where.path):
+            data = blob(where.root, rev, extra)
+            if data is not None:
+                _write(mirror, extra, data)
+        yield _write(mirror, where.path, content)
+
+
+def _write(mirror: Path, path: PurePosixPath, data: bytes) -> Path:
+    target = mirror.joinpath(*path.parts)
+    target.parent.mkdir(parents=True, exist_ok=True)
+    target.write_bytes(data)
+    return target
+
+
+def staged_boards(cwd: str | Path) -> tuple[PurePosixPath, ...]:
+    """``.kicad_pcb`` files added, copied, modified or renamed in the index."""
+    out = run_git(["diff", "--cached", "--name-only", "--diff-filter=ACMR", "-z"], cwd)
+    names = [n for n in out.decode("utf-8", "surrogateescape").split("\0") if n]
+    return tuple(PurePosixPath(n) for n in sorted(names) if n.endswith(".kicad_pcb"))
+
+
+def repo_root(cwd: str | Path) -> Path:
+    """Top folder of the repository containing ``cwd``."""
+    return Path(run_git(["rev-parse", "--show-toplevel"], cwd).decode().strip())

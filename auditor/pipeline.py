@@ -1,0 +1,196 @@
+"""One audit, end to end: read → sensors → field → rules → decide → Report.
+
+The field step runs before the rules so the rules on Cp and ΔC see the
+metrics; every other rule judges only the board and the sensor records.
+Everything is ordered deterministically (sensors by name, findings by
+:func:`auditor.decide.finding_order`, rules by id), so the same board and
+options give the same report.
+"""
+
+from __future__ import annotations
+
+import argparse
+from collections.abc import Mapping
+from dataclasses import dataclass, replace
+from pathlib import Path
+
+from auditor import __version__
+from auditor.config import Config, discover_config, with_overrides
+from auditor.decide import Policy, decide, sensitivity_ranks, sensor_verdict
+from auditor.model.board import Board
+from auditor.model.items import ReadWarning
+from auditor.read import read_board
+from auditor.report.model import PadMetrics, Report, RuleInfo, RunInfo, SensorResult
+from auditor.rules.context import RuleContext, RuleSettings, ThresholdValue
+from auditor.rules.profiles import Profile, load_profile
+from auditor.rules.registry import all_rules, run_rules
+from auditor.sensors import find_sensors, measure
+from auditor.sensors.model import Sensor
+from auditor.sensors.selection import SensorSelection
+
+
+@dataclass(frozen=True)
+class AuditOptions:
+    """Command-line values that override the configuration file."""
+
+    config_path: str | None = None
+    profile: str | None = None
+    overlay: str | None = None
+    power: str | None = None
+    touch_side: str | None = None
+    fail_on: str | None = None
+    solve: bool = True  # False: layout rules only, every sensor "unsolved"
+
+
+def options_from_args(args: argparse.Namespace) -> AuditOptions:
+    """The audit options in parsed arguments (absent ones left unset)."""
+    return AuditOptions(
+        config_path=getattr(args, "config", None), profile=getattr(args, "profile", None),
+        overlay=getattr(args, "overlay", None), power=getattr(args, "power", None),
+        touch_side=getattr(args, "touch_side", None), fail_on=getattr(args, "fail_on", None),
+        solve=not getattr(args, "no_solve", False))
+
+
+@dataclass(frozen=True)
+class AuditSetup:
+    """The resolved configuration, profile and thresholds of one run."""
+
+    config: Config
+    profile: Profile
+    thresholds: Mapping[str, ThresholdValue]
+
+
+def resolve_setup(board_path: str | Path, options: AuditOptions | None = None) -> AuditSetup:
+    """Configuration (file walked up from the board, then flags) and profile."""
+    opts = options or AuditOptions()
+    config = with_overrides(discover_config(board_path, opts.config_path),
+                            profile=opts.profile, overlay=opts.overlay, power=opts.power,
+                            touch_side=opts.touch_side, fail_on=opts.fail_on)
+    profile = load_profile(config.profile, config.base_dir)
+    return AuditSetup(config, profile, {**profile.thresholds, **config.thresholds})
+
+
+def measuring_selection(setup: AuditSetup) -> SensorSelection:
+    """The sensor selection with the profile's measuring distances, unless the
+    user set those under ``[sensors]``."""
+    sel, given, limits = setup.config.selection, setup.config.selection_keys, setup.thresholds
+
+    def pick(field_name: str, threshold: str, current: float) -> float:
+        if field_name in given or threshold not in limits:
+            return current
+        return float(limits[threshold])
+
+    return replace(
+        sel,
+        neighbour_distance_mm=pick("neighbour_distance_mm", "parallel_distance_mm",
+                                   sel.neighbour_distance_mm),
+        parts_radius_mm=pick("parts_radius_mm", "nearby_radius_mm", sel.parts_radius_mm),
+        floating_radius_mm=max(sel.floating_radius_mm,
+                               pick("floating_radius_mm", "floating_copper_min_mm",
+                                    sel.floating_radius_mm)))
+
+
+def solve_sensors(board: Board, sensors: tuple[Sensor, ...],
+                  settings: Config) -> dict[str, PadMetrics]:
+    """Field metrics per sensor name.
+
+    Not wired to the solver yet: returns ``{}`` so every sensor is reported
+    ``unsolved`` (no number is made up). The solver side is
+    :func:`auditor.pipeline_field.solve_sensors` (same first three
+    arguments, plus ``thresholds``); the metric rules and verdicts already
+    use whatever this returns.
+    """
+    return {}
+
+
+def sense_nets(board: Board, sensors: tuple[Sensor, ...]) -> tuple[str, ...]:
+    """Every electrode's nets and the nets of its series part's pads (the
+    stretch from the resistor to the controller pin), sorted."""
+    nets = {net for s in sensors for net in (*s.nets, *(s.path.nets if s.path else ()))}
+    series = {s.path.series_ref for s in sensors if s.path and s.path.series_ref}
+    for fp in board.footprints:
+        if fp.ref in series:
+            nets.update(pad.net for pad in fp.pads)
+    nets.discard("")
+    return tuple(sorted(nets))
+
+
+def rule_settings(config: Config, nets_of_sensors: tuple[str, ...] = ()) -> RuleSettings:
+    """What the rules need to know about the product."""
+    return RuleSettings(
+        sense_nets=nets_of_sensors,
+        overlay_thickness_mm=config.overlay_thickness_mm,
+        overlay_electrical_mm=config.overlay_electrical_mm,
+        touch_side=config.touch_side, power=config.power,
+        noisy_nets=config.noisy_nets,
+        controller_ref=config.controller or config.selection.controller_ref)
+
+
+def describe_warning(warning: ReadWarning) -> str:
+    """A reader warning as one line: ``code: message (line L:C)``."""
+    where = ""
+    if warning.line is not None:
+        where = f" (line {warning.line}" + (f":{warning.column}" if warning.column else "") + ")"
+    return f"{warning.code}: {warning.message}{where}"
+
+
+def run_audit(board_path: str | Path, options: AuditOptions | None = None) -> Report:
+    """Audit one board file.
+
+    Raises
+    ------
+    BoardFileError, ConfigError, UsageError
+        On bad input (the command line turns these into exit code 2).
+    """
+    opts = options or AuditOptions()
+    setup = resolve_setup(board_path, opts)
+    board = read_board(board_path)
+    selection = measuring_selection(setup)
+    found, _rejects = find_sensors(board, selection)
+    sensors = tuple(sorted(measure(board, found, selection), key=lambda s: s.name))
+    metrics = solve_sensors(board, sensors, setup.config) if opts.solve else {}
+    return build_report(board, sensors, metrics, setup)
+
+
+def build_report(board: Board, sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetrics],
+                 setup: AuditSetup) -> Report:
+    """Run the rules, decide, and assemble the report (no file access)."""
+    config = setup.config
+    specs = all_rules()
+    policy = Policy(specs, setup.profile.levels, config.severity, config.waivers)
+    ctx = RuleContext(sensors, rule_settings(config, sense_nets(board, sensors)),
+                      board.copper_layers, board.warnings,
+                      metrics, setup.thresholds)
+    ran = run_rules(ctx, policy.active_rule_ids())
+    decision = decide(ran.findings, policy)
+    active = set(policy.active_rule_ids())
+    return Report(
+        info=RunInfo(board_path=str(board.path), board_version=board.version,
+                     tool_version=__version__, profile=setup.profile.name,
+                     overlay=config.describe_overlay(), touch_side=config.touch_side,
+                     power=config.power, fail_on=config.fail_on,
+                     max_ratio_loss=float(setup.thresholds.get("max_ratio_loss", 0.2))),
+        sensors=_sensor_results(sensors, metrics, setup.thresholds),
+        findings=decision.findings,
+        rules=tuple(RuleInfo(s.rule_id, s.title, s.rationale, s.fix, s.severity)
+                    for s in specs if s.rule_id in active),
+        read_warnings=tuple(describe_warning(w) for w in board.warnings),
+        stale_waivers=decision.stale_waivers,
+        rule_errors=tuple(sorted(ran.errors)),
+        cautions=_cautions(config.power),
+        board=board,
+    )
+
+
+def _sensor_results(sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetrics],
+                    thresholds: Mapping[str, ThresholdValue]) -> tuple[SensorResult, ...]:
+    ranks = sensitivity_ranks(metrics)
+    return tuple(SensorResult(s, metrics.get(s.name), ranks.get(s.name, 0),
+                              sensor_verdict(metrics.get(s.name), thresholds))
+                 for s in sensors)
+
+
+def _cautions(power: str) -> tuple[str, ...]:
+    from auditor.report.cautions import cautions_for
+
+    return cautions_for(power)

@@ -1,0 +1,147 @@
+"""The JSON report: a versioned, documented document (docs/report-json.md).
+
+The document is a pure function of the report: keys sorted, floats rounded to
+six significant digits (so solver noise below that cannot change the bytes),
+no timestamps, the board path exactly as the user gave it. The JSON Schema
+ships beside this module (``schema/report.schema.json``).
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from collections.abc import Iterable
+from importlib import resources
+from typing import Any, TextIO
+
+from auditor.report.model import DecidedFinding, PadMetrics, Report, SensorResult
+from auditor.sensors.model import SensePath, Surroundings
+
+#: Bumped when a field is removed or changes meaning; additions keep it.
+SCHEMA_VERSION = 1
+
+
+def rounded(value: float | None) -> float | None:
+    """``value`` to six significant digits; ``None`` for None, NaN or infinity."""
+    if value is None or not math.isfinite(value):
+        return None
+    if value == 0:
+        return 0.0
+    return float(f"{value:.6g}")
+
+
+def _metrics(m: PadMetrics | None) -> dict[str, Any] | None:
+    if m is None:
+        return None
+    return {
+        "cp_pad_pf": rounded(m.cp_pad_pf), "cp_trace_pf": rounded(m.cp_trace_pf),
+        "cp_total_pf": rounded(m.cp_total_pf), "delta_c_pf": rounded(m.delta_c_pf),
+        "delta_ratio": rounded(m.delta_ratio), "method": m.method, "notes": list(m.notes),
+    }
+
+
+def _path(p: SensePath | None) -> dict[str, Any] | None:
+    if p is None:
+        return None
+    return {
+        "length_mm": rounded(p.length_mm), "vias": p.vias, "layers": list(p.layers),
+        "controller_ref": p.controller_ref, "controller_pin": p.controller_pin,
+        "series_ref": p.series_ref, "series_to_pin_mm": rounded(p.series_to_pin_mm),
+        "complete": p.complete,
+    }
+
+
+def _surroundings(s: Surroundings | None) -> dict[str, Any] | None:
+    if s is None:
+        return None
+    return {
+        "ground_net": s.ground_net, "min_gap_mm": rounded(s.min_gap_mm),
+        "typical_gap_mm": rounded(s.typical_gap_mm),
+        "ground_fill_ratio": rounded(s.ground_fill_ratio),
+        "nearest_sensor": s.nearest_sensor,
+        "nearest_sensor_mm": rounded(s.nearest_sensor_mm),
+        "ground_area_mm2": rounded(s.ground_area_mm2),
+    }
+
+
+def _sensor(r: SensorResult) -> dict[str, Any]:
+    s = r.sensor
+    return {
+        "name": s.name, "kind": s.kind, "nets": list(s.nets), "refs": list(s.refs),
+        "layer": s.layer, "area_mm2": rounded(s.area_mm2), "x_mm": rounded(s.x_mm),
+        "y_mm": rounded(s.y_mm), "reason": s.reason, "group": s.group, "index": s.index,
+        "exposed": s.exposed, "pasted": s.pasted, "rank": r.rank, "verdict": r.verdict,
+        "metrics": _metrics(r.metrics), "path": _path(s.path),
+        "surroundings": _surroundings(s.surroundings),
+    }
+
+
+def _finding(d: DecidedFinding, failing: bool) -> dict[str, Any]:
+    f = d.finding
+    return {
+        "rule_id": f.rule_id, "severity": d.severity.label,
+        "default_severity": f.severity.label, "message": f.message,
+        "x_mm": rounded(f.x_mm), "y_mm": rounded(f.y_mm), "layer": f.layer,
+        "nets": list(f.nets), "refs": list(f.refs), "sensor": f.sensor,
+        "measured": {name: rounded(value) for name, value in f.measured},
+        "waived": d.waived, "in_baseline": d.in_baseline, "failing": failing,
+    }
+
+
+def _count_by_severity(findings: Iterable[DecidedFinding]) -> dict[str, int]:
+    counts = {"error": 0, "warning": 0, "info": 0}
+    for d in findings:
+        counts[d.severity.label] += 1
+    return counts
+
+
+def to_document(report: Report) -> dict[str, Any]:
+    """The report as plain JSON-ready data (schema version :data:`SCHEMA_VERSION`)."""
+    info = report.info
+    failing_ids = {id(d) for d in report.failing}
+    return {
+        "schema_version": SCHEMA_VERSION,
+        "tool": {"name": "padaudit", "version": info.tool_version},
+        "board": {"path": info.board_path, "format_version": info.board_version},
+        "run": {
+            "profile": info.profile, "overlay": info.overlay, "touch_side": info.touch_side,
+            "power": info.power, "fail_on": info.fail_on.label,
+            "max_ratio_loss": rounded(info.max_ratio_loss),
+        },
+        "summary": {
+            "exit_code": report.exit_code, "sensors": len(report.sensors),
+            "findings": _count_by_severity(report.findings),
+            "failing": len(failing_ids),
+        },
+        "sensors": [_sensor(r) for r in report.sensors],
+        "findings": [_finding(d, id(d) in failing_ids) for d in report.findings],
+        "rules": [
+            {"rule_id": r.rule_id, "title": r.title, "rationale": r.rationale, "fix": r.fix,
+             "default_severity": r.default_severity.label}
+            for r in report.rules
+        ],
+        "read_warnings": list(report.read_warnings),
+        "stale_waivers": list(report.stale_waivers),
+        "stale_baseline": list(report.stale_baseline),
+        "rule_errors": [{"rule_id": rid, "error": err} for rid, err in report.rule_errors],
+        "cautions": list(report.cautions),
+    }
+
+
+def dumps(document: Any) -> str:
+    """Serialise canonically: sorted keys, two-space indent, final newline."""
+    return json.dumps(document, sort_keys=True, indent=2, ensure_ascii=False,
+                      allow_nan=False) + "\n"
+
+
+def render_json(report: Report, stream: TextIO) -> None:
+    """Write the JSON report to ``stream``."""
+    stream.write(dumps(to_document(report)))
+
+
+def load_schema() -> dict[str, Any]:
+    """The shipped JSON Schema of the report document."""
+    text = resources.files("auditor.report").joinpath("schema/report.schema.json").read_text(
+        encoding="utf-8")
+    schema: dict[str, Any] = json.loads(text)
+    return schema

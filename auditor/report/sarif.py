@@ -1,0 +1,151 @@
+"""SARIF 2.1.0 output (OASIS Static Analysis Results Interchange Format).
+
+Every finding is a ``result`` located at the board file; SARIF has no notion
+of board coordinates, so x/y (mm, Y down as in KiCad), layer, nets and
+references go into the result's ``properties``. Waived findings carry a
+``suppression``; baselined ones ``baselineState: unchanged``.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import os
+from pathlib import Path
+from typing import Any, TextIO
+
+from auditor.report.as_json import dumps, rounded
+from auditor.report.model import DecidedFinding, Report, RuleInfo
+from auditor.rules.finding import Severity
+
+SARIF_VERSION = "2.1.0"
+SARIF_SCHEMA_URI = "https://json.schemastore.org/sarif-2.1.0.json"
+LEVELS = {Severity.ERROR: "error", Severity.WARNING: "warning", Severity.INFO: "note"}
+
+
+def artifact_uri(board_path: str) -> str:
+    """The board as a URI relative to the working directory (where CI runs,
+    normally the repository root); an absolute ``file:`` URI when outside it."""
+    path = Path(board_path)
+    if not path.is_absolute():
+        return path.as_posix()
+    try:
+        rel = os.path.relpath(path, Path.cwd())
+    except ValueError:  # another drive on Windows
+        return path.as_uri()
+    return path.as_uri() if rel.startswith("..") else Path(rel).as_posix()
+
+
+def rule_name(rule_id: str) -> str:
+    """``ground-gap-tight`` -> ``GroundGapTight`` (SARIF names are identifiers)."""
+    return "".join(part[:1].upper() + part[1:] for part in rule_id.replace("_", "-").split("-"))
+
+
+def _descriptor(rule: RuleInfo) -> dict[str, Any]:
+    return {
+        "id": rule.rule_id,
+        "name": rule_name(rule.rule_id),
+        "shortDescription": {"text": rule.title or rule.rule_id},
+        "fullDescription": {"text": rule.rationale or rule.title or rule.rule_id},
+        "help": {"text": rule.fix or "No fix advice recorded for this rule."},
+        "defaultConfiguration": {"level": LEVELS[rule.default_severity]},
+    }
+
+
+def _rules(report: Report) -> list[RuleInfo]:
+    known = {r.rule_id: r for r in report.rules}
+    for d in report.findings:  # a finding from a rule without metadata still gets one
+        f = d.finding
+        known.setdefault(f.rule_id, RuleInfo(f.rule_id, f.rule_id, "", "", f.severity))
+    return [known[rid] for rid in sorted(known)]
+
+
+def fingerprint(d: DecidedFinding) -> str:
+    """Stable hash of the finding's key (rule, sensor, nets, refs)."""
+    rule_id, sensor, nets, refs = d.finding.key
+    text = "\x1f".join([rule_id, sensor, ",".join(nets), ",".join(refs)])
+    return hashlib.sha256(text.encode("utf-8")).hexdigest()[:32]
+
+
+def message_text(d: DecidedFinding) -> str:
+    """The finding's message with where it is on the board, since SARIF
+    viewers show the message but not our properties."""
+    f = d.finding
+    where = [f"x {f.x_mm:.2f} mm, y {f.y_mm:.2f} mm"] if f.x_mm is not None and f.y_mm is not None else []
+    where += [f.layer] if f.layer else []
+    where += [", ".join(f.refs)] if f.refs else []
+    return f.message + (f" [{'; '.join(where)}]" if where else "")
+
+
+def _result(d: DecidedFinding, index: int, uri: str, failing: bool) -> dict[str, Any]:
+    f = d.finding
+    # Viewers such as GitHub code scanning place results by line; a board
+    # finding has no meaningful line, so it is anchored at the file's start.
+    physical = {"artifactLocation": {"uri": uri, "index": 0}, "region": {"startLine": 1}}
+    result: dict[str, Any] = {
+        "ruleId": f.rule_id,
+        "ruleIndex": index,
+        "level": LEVELS[d.severity],
+        "message": {"text": message_text(d)},
+        "locations": [{"physicalLocation": physical}],
+        "partialFingerprints": {"padauditFindingKey/v1": fingerprint(d)},
+        "baselineState": "unchanged" if d.in_baseline else "new",
+        "properties": {
+            "x_mm": rounded(f.x_mm), "y_mm": rounded(f.y_mm), "layer": f.layer,
+            "nets": list(f.nets), "refs": list(f.refs), "sensor": f.sensor,
+            "measured": {name: rounded(value) for name, value in f.measured},
+            "default_severity": f.severity.label, "failing": failing,
+        },
+    }
+    if f.sensor:
+        result["locations"][0]["logicalLocations"] = [{"name": f.sensor, "kind": "object"}]
+    if d.waived:
+        result["suppressions"] = [{"kind": "external", "status": "accepted",
+                                   "justification": d.waived}]
+    return result
+
+
+def _notifications(report: Report) -> list[dict[str, Any]]:
+    notes: list[dict[str, Any]] = []
+    for rid, err in report.rule_errors:
+        notes.append({"level": "error", "message": {"text": f"rule {rid} crashed: {err}"},
+                      "descriptor": {"id": "rule-crashed"}})
+    for text, level in ([(w, "warning") for w in report.read_warnings]
+                        + [(w, "note") for w in report.stale_waivers]
+                        + [(b, "note") for b in report.stale_baseline]
+                        + [(c, "warning") for c in report.cautions]):
+        notes.append({"level": level, "message": {"text": text}})
+    return notes
+
+
+def to_sarif(report: Report) -> dict[str, Any]:
+    """The report as a SARIF 2.1.0 log (one run)."""
+    info = report.info
+    rules = _rules(report)
+    index = {r.rule_id: i for i, r in enumerate(rules)}
+    uri = artifact_uri(info.board_path)
+    failing = {id(d) for d in report.failing}
+    run: dict[str, Any] = {
+        "tool": {"driver": {
+            "name": "padaudit", "version": info.tool_version,
+            "semanticVersion": info.tool_version,
+            "rules": [_descriptor(r) for r in rules],
+        }},
+        "artifacts": [{"location": {"uri": uri}, "roles": ["analysisTarget"]}],
+        "invocations": [{
+            "executionSuccessful": not report.rule_errors,
+            "toolExecutionNotifications": _notifications(report),
+        }],
+        "results": [_result(d, index[d.finding.rule_id], uri, id(d) in failing)
+                    for d in report.findings],
+        "properties": {
+            "board_format_version": info.board_version, "profile": info.profile,
+            "overlay": info.overlay, "touch_side": info.touch_side, "power": info.power,
+            "fail_on": info.fail_on.label,
+        },
+    }
+    return {"$schema": SARIF_SCHEMA_URI, "version": SARIF_VERSION, "runs": [run]}
+
+
+def render_sarif(report: Report, stream: TextIO) -> None:
+    """Write the SARIF log to ``stream`` (canonical JSON, byte-stable)."""
+    stream.write(dumps(to_sarif(report)))

@@ -1,0 +1,282 @@
+"""The terminal report, laid out with rich.
+
+Sections, top to bottom: header, cautions, electrode table, findings by
+severity, per-rule counts, what the reader skipped, stale waivers and
+baseline entries, crashed rules, and a one-line result. Without colour the
+console is built with no colour system, so not one escape code is written.
+"""
+
+from __future__ import annotations
+
+import io
+from collections import Counter
+from typing import TextIO
+
+from rich.console import Console
+from rich.table import Table
+from rich.text import Text
+
+from auditor.report.model import DecidedFinding, Report, RuleInfo, SensorResult
+from auditor.rules.finding import Severity
+
+ORDERS: tuple[str, ...] = ("weakest", "rank")
+_BAR_CELLS = 10
+_FILE_WIDTH = 100  # columns when writing to a file or pipe
+_EIGHTHS = " ▏▎▍▌▋▊▉█"
+_VERDICT_STYLE = {"ok": "green", "weak": "yellow", "fail": "bold red", "unsolved": "magenta"}
+_SEVERITY_STYLE = {Severity.ERROR: "bold red", Severity.WARNING: "yellow", Severity.INFO: "cyan"}
+
+
+def ratio_bar(ratio: float, best_ratio: float, cells: int = _BAR_CELLS) -> str:
+    """A bar ``cells`` wide, full for ``best_ratio``, in eighth-cell steps.
+
+    Examples
+    --------
+    >>> ratio_bar(0.5, 1.0, cells=4)
+    '██  '
+    """
+    if best_ratio <= 0 or ratio <= 0:
+        return " " * cells
+    eighths = round(min(ratio / best_ratio, 1.0) * cells * 8)
+    full, rest = divmod(eighths, 8)
+    bar = "█" * full + (_EIGHTHS[rest] if rest else "")
+    return bar.ljust(cells)
+
+
+def ordered_sensors(sensors: tuple[SensorResult, ...], order: str) -> list[SensorResult]:
+    """``rank``: most sensitive first; ``weakest``: least sensitive first, with
+    unsolved pads (no metrics, nothing known) at the very top."""
+    if order not in ORDERS:
+        raise ValueError(f"unknown order {order!r}; choose one of: {', '.join(ORDERS)}")
+    by_rank = sorted(sensors, key=lambda r: (r.metrics is None, r.rank, r.sensor.name))
+    if order == "rank":
+        return by_rank
+    return sorted(sensors, key=lambda r: (r.metrics is not None, -r.rank, r.sensor.name))
+
+
+def _pf(value: float) -> str:
+    return f"{value:.2f}" if abs(value) >= 0.1 else f"{value:.3f}"
+
+
+def _header(console: Console, report: Report) -> None:
+    info = report.info
+    console.print(Text(f"padaudit {info.tool_version} · touch electrode audit", style="bold"))
+    grid = Table.grid(padding=(0, 2))
+    grid.add_column(style="dim")
+    grid.add_column()
+    grid.add_row("board", f"{info.board_path}  (file format {info.board_version})")
+    grid.add_row("profile", f"{info.profile}   fail on {info.fail_on.label}")
+    grid.add_row("overlay", info.overlay)
+    grid.add_row("touch side", info.touch_side)
+    grid.add_row("power", info.power)
+    console.print(grid)
+
+
+def _cautions(console: Console, report: Report) -> None:
+    if not report.cautions:
+        return
+    grid = Table.grid(padding=(0, 1))
+    grid.add_column(no_wrap=True)
+    grid.add_column()
+    for caution in report.cautions:
+        grid.add_row(Text("CAUTION", style="bold reverse yellow"), caution)
+    console.print()
+    console.print(grid)
+
+
+def _ref_or_net(r: SensorResult) -> str:
+    """The first reference, else the first net: how to find the pad in KiCad."""
+    s = r.sensor
+    return (s.refs[0] if s.refs else s.nets[0] if s.nets else "") + (
+        "…" if len(s.refs) > 1 else "")
+
+
+def _sensor_table(console: Console, report: Report, order: str) -> None:
+    rows = ordered_sensors(report.sensors, order)
+    title = "weakest first" if order == "weakest" else "most sensitive first"
+    console.print()
+    console.print(Text(f"Electrodes ({len(rows)}), {title}", style="bold"))
+    if not rows:
+        console.print("  no electrodes found: nothing was solved or judged")
+        return
+    table = Table(box=None, pad_edge=False, header_style="bold", show_edge=False,
+                  collapse_padding=True)
+    for name, justify in (("rank", "right"), ("sensor", "left"), ("ref/net", "left"),
+                          ("kind", "left"),
+                          ("area mm²", "right"), ("Cp pad", "right"), ("Cp trace", "right"),
+                          ("Cp total", "right"), ("ΔC", "right"), ("ΔC/Cp", "right"),
+                          ("", "left"), ("verdict", "left")):
+        table.add_column(name, justify=justify, no_wrap=True)  # type: ignore[arg-type]
+    best = max((r.metrics.delta_ratio for r in rows if r.metrics), default=0.0)
+    for r in rows:
+        s, m = r.sensor, r.metrics
+        cells = [str(r.rank) if m else "–", s.name, _ref_or_net(r), s.kind,
+                 f"{s.area_mm2:.1f}"]
+        if m is None:
+            cells += ["–"] * 5 + [""]
+        else:
+            cells += [_pf(m.cp_pad_pf), _pf(m.cp_trace_pf), _pf(m.cp_total_pf),
+                      f"{m.delta_c_pf:.3f}", f"{m.delta_ratio * 100:.2f} %",
+                      ratio_bar(m.delta_ratio, best)]
+        table.add_row(*cells, Text(r.verdict, style=_VERDICT_STYLE.get(r.verdict, "")))
+    console.print(table)
+    console.print(Text("  capacitances in pF; ΔC is the change under a finger", style="dim"))
+
+
+def _where(d: DecidedFinding) -> str:
+    f = d.finding
+    parts = []
+    if f.x_mm is not None and f.y_mm is not None:
+        parts.append(f"x {f.x_mm:.2f} mm, y {f.y_mm:.2f} mm")
+    if f.layer:
+        parts.append(f.layer)
+    if f.refs:
+        parts.append("refs " + ", ".join(f.refs))
+    if f.nets:
+        parts.append("nets " + ", ".join(f.nets))
+    return " · ".join(parts) if parts else "the whole board"
+
+
+def _finding_rows(grid: Table, d: DecidedFinding) -> None:
+    f = d.finding
+    head = Text(f"{f.sensor or 'board'}: ", style="bold")
+    head.append(f.message, style="")
+    if d.severity != f.severity:
+        moved = "raised" if d.severity > f.severity else "lowered"
+        head.append(f" ({moved} from {f.severity.label} by the configuration)", style="dim")
+    grid.add_row("•", head)
+    grid.add_row("", Text(f"at {_where(d)}", style="dim"))
+    if d.waived:
+        grid.add_row("", Text(f"waived: {d.waived}", style="dim"))
+    if d.in_baseline:
+        grid.add_row("", Text("in the baseline: accepted earlier, does not fail", style="dim"))
+
+
+def _rule_block(console: Console, rule_id: str, group: list[DecidedFinding],
+                rule: RuleInfo | None, severity: Severity) -> None:
+    """One rule's findings: the rule and its fix once, then each finding
+    (sensor, message, where)."""
+    head = Text("  ")
+    head.append(rule_id, style=_SEVERITY_STYLE[severity])
+    head.append(f"  ×{len(group)}" if len(group) > 1 else "")
+    if rule is not None and rule.title:
+        head.append(f"  {rule.title}", style="dim")
+    console.print(head)
+    grid = Table.grid(padding=(0, 1))
+    grid.add_column(no_wrap=True, width=6, justify="right")
+    grid.add_column()
+    if rule is not None and rule.fix:
+        grid.add_row("fix", Text(rule.fix, style="italic"))
+    for d in group:
+        _finding_rows(grid, d)
+    console.print(grid)
+
+
+def _findings(console: Console, report: Report) -> None:
+    rules = {r.rule_id: r for r in report.rules}
+    console.print()
+    if not report.findings:
+        console.print(Text("Findings: none", style="bold"))
+        return
+    console.print(Text(f"Findings ({len(report.findings)})", style="bold"))
+    for severity in sorted(Severity, reverse=True):
+        group = [d for d in report.findings if d.severity == severity]
+        if not group:
+            continue
+        console.print(Text(f" {severity.label.upper()} ({len(group)})",
+                           style=_SEVERITY_STYLE[severity]))
+        by_rule: dict[str, list[DecidedFinding]] = {}
+        for d in group:
+            by_rule.setdefault(d.finding.rule_id, []).append(d)
+        for rule_id, members in by_rule.items():
+            _rule_block(console, rule_id, members, rules.get(rule_id), severity)
+
+
+def _rule_counts(console: Console, report: Report) -> None:
+    if not report.findings:
+        return
+    total = Counter(d.finding.rule_id for d in report.findings)
+    failing = Counter(d.finding.rule_id for d in report.failing)
+    worst = {rid: max(d.severity for d in report.findings if d.finding.rule_id == rid)
+             for rid in total}
+    table = Table(box=None, pad_edge=False, header_style="bold", show_edge=False)
+    table.add_column("rule")
+    table.add_column("worst")
+    table.add_column("found", justify="right")
+    table.add_column("failing", justify="right")
+    for rid in sorted(total, key=lambda r: (-worst[r], r)):
+        table.add_row(rid, Text(worst[rid].label, style=_SEVERITY_STYLE[worst[rid]]),
+                      str(total[rid]), str(failing[rid]))
+    console.print()
+    console.print(Text("Per rule", style="bold"))
+    console.print(table)
+
+
+def _listing(console: Console, title: str, lines: tuple[str, ...]) -> None:
+    if not lines:
+        return
+    console.print()
+    console.print(Text(title, style="bold"))
+    grid = Table.grid(padding=(0, 1))
+    grid.add_column(no_wrap=True, width=3, justify="right")
+    grid.add_column()
+    for line in lines:
+        grid.add_row("-", line)
+    console.print(grid)
+
+
+def _result(console: Console, report: Report) -> None:
+    failing = len(report.failing)
+    console.print()
+    if report.exit_code == 0:
+        line = Text("PASS", style="bold green")
+        line.append(f"  nothing at or above {report.info.fail_on.label} (exit 0)", style="")
+        if report.read_warnings:  # partly understood is not clean: say so on the last line
+            line.append(f"; INCOMPLETE: {len(report.read_warnings)} item(s) skipped or "
+                        "guessed while reading, listed above", style="bold yellow")
+        if not report.sensors:
+            line.append("; no electrodes were found, so nothing was judged",
+                        style="bold yellow")
+    else:
+        line = Text("FAIL", style="bold red")
+        why = [f"{failing} finding{'s' if failing != 1 else ''} at or above "
+               f"{report.info.fail_on.label}"] if failing else []
+        if report.rule_errors:
+            why.append(f"{len(report.rule_errors)} rule(s) crashed")
+        line.append("  " + "; ".join(why) + " (exit 1)", style="")
+    console.print(line)
+
+
+def render_text(report: Report, stream: TextIO, colour: bool, *, order: str = "weakest",
+                width: int | None = None) -> None:
+    """Write the terminal report to ``stream``.
+
+    Parameters
+    ----------
+    colour:
+        Decided once by the caller; ``False`` writes plain text, no escapes.
+    order:
+        ``weakest`` (default) or ``rank`` for the electrode table.
+    width:
+        Columns; ``None`` asks the terminal, or 100 when not writing to one.
+    """
+    if width is None:
+        probe = Console(file=stream)
+        width = probe.width if probe.is_terminal else _FILE_WIDTH
+    buffer = io.StringIO()
+    console = Console(file=buffer, force_terminal=colour, no_color=not colour,
+                      color_system="standard" if colour else None, highlight=False,
+                      emoji=False, markup=False, width=width, soft_wrap=False)
+    _header(console, report)
+    _cautions(console, report)
+    _sensor_table(console, report, order)
+    _findings(console, report)
+    _rule_counts(console, report)
+    _listing(console, "Skipped or guessed while reading the board", report.read_warnings)
+    _listing(console, "Stale waivers (matched nothing)", report.stale_waivers)
+    _listing(console, "Stale baseline entries (no longer found)", report.stale_baseline)
+    _listing(console, "Rules that crashed (their checks did not run)",
+             tuple(f"{rid}: {err}" for rid, err in report.rule_errors))
+    _result(console, report)
+    # rich pads table rows to full width; trailing blanks only make diffs noisy.
+    stream.write("".join(line.rstrip() + "\n" for line in buffer.getvalue().splitlines()))

@@ -1,0 +1,173 @@
+"""Rules about the electrode itself: size, side, cover, spacing, nets."""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+
+from auditor.rules.context import EPS_MM
+from auditor.rules.finding import Finding, Severity
+from auditor.rules.registry import RuleCall, board_rule, sensor_rule
+from auditor.sensors.model import Sensor
+
+
+@sensor_rule(
+    "electrode-too-small",
+    title="Button electrode too small for its overlay",
+    fix="Grow the pad (about 10 mm across under 1-3 mm of plastic), or use a thinner or "
+        "higher-permittivity cover.",
+    severity=Severity.WARNING,
+    thresholds=("pad_min_diameter_mm", "pad_diameter_per_electrical_mm"),
+    kinds=("button",),
+)
+def electrode_too_small(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """The finger's added capacitance grows with the part of the pad it covers
+    and falls with the cover's electrical thickness (t/εr). A small pad under
+    a thick cover gives a signal too small to separate from noise, so the
+    smallest sensible pad grows with the overlay's electrical thickness, and
+    there is a floor below which a fingertip signal is small at any cover."""
+    electrical_mm = call.board.settings.overlay_electrical_mm
+    need_mm = max(call.limits["pad_min_diameter_mm"],
+                  call.limits["pad_diameter_per_electrical_mm"] * electrical_mm)
+    have_mm = sensor.equivalent_diameter_mm
+    if have_mm < need_mm:
+        yield call.finding(
+            f"equivalent diameter {have_mm:.1f} mm is below {need_mm:.1f} mm for an "
+            f"overlay of {electrical_mm:.2f} mm electrical thickness",
+            sensor, (("diameter_mm", have_mm), ("min_mm", need_mm)))
+
+
+@sensor_rule(
+    "electrode-too-large",
+    title="Button electrode larger than a fingertip needs",
+    fix="Shrink the pad towards 10-15 mm, or hatch it; a larger pad adds baseline "
+        "capacitance and noise pick-up faster than signal.",
+    severity=Severity.INFO,
+    thresholds=("pad_max_diameter_mm",),
+    kinds=("button",),
+)
+def electrode_too_large(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """Once the pad is wider than the finger's contact, more copper adds
+    baseline capacitance (and pick-up of noise and water) but hardly any touch
+    signal, so the relative change under a finger falls."""
+    limit_mm = call.limits["pad_max_diameter_mm"]
+    have_mm = sensor.equivalent_diameter_mm
+    if have_mm > limit_mm:
+        yield call.finding(
+            f"equivalent diameter {have_mm:.1f} mm exceeds {limit_mm:.1f} mm",
+            sensor, (("diameter_mm", have_mm), ("max_mm", limit_mm)))
+
+
+@sensor_rule(
+    "electrode-far-side",
+    title="Electrode on the layer away from the touch surface",
+    fix="Move the electrode to the copper layer that faces the cover, or set touch_side "
+        "if the board is mounted the other way round.",
+    severity=Severity.WARNING,
+)
+def electrode_far_side(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """An electrode on the far layer senses through the board's own dielectric
+    as well as the cover, and any copper on the near layer screens it from the
+    finger."""
+    near = call.board.touch_layer
+    if sensor.layer != near:
+        yield call.finding(
+            f"electrode is on {sensor.layer}; the touch surface is on the "
+            f"{call.board.settings.touch_side} ({near})", sensor)
+
+
+@sensor_rule(
+    "electrode-mask-open",
+    title="Solder mask opened over an electrode that should be covered",
+    fix="Remove the mask opening (footprint pad mask layer or a mask-layer graphic) so the "
+        "electrode stays under solder mask.",
+    severity=Severity.WARNING,
+    thresholds=("electrode_must_be_covered",),
+)
+def electrode_mask_open(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """Bare copper under a cover corrodes, and an air gap over the thickness
+    of the missing mask changes the baseline from pad to pad; where the cover
+    is glued on, the mask gives a flat, insulated surface."""
+    if call.limits.flag("electrode_must_be_covered") and sensor.exposed:
+        yield call.finding("electrode copper is exposed through a solder-mask opening", sensor)
+
+
+@sensor_rule(
+    "electrode-paste",
+    title="Solder paste on an electrode",
+    fix="Remove the paste layer from the electrode pad so no solder is printed on it.",
+    severity=Severity.WARNING,
+    thresholds=("electrode_must_be_covered",),
+)
+def electrode_paste(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """Paste printed on a large pad leaves an uneven solder hump that holds
+    the cover off the pad (an air gap of varying height, so varying
+    sensitivity) and is a sign the pad was drawn as a component pad."""
+    if call.limits.flag("electrode_must_be_covered") and sensor.pasted:
+        yield call.finding("electrode has solder paste", sensor)
+
+
+@sensor_rule(
+    "electrodes-too-close",
+    title="Two electrodes too close to each other",
+    fix="Space the electrodes further apart (and by at least the overlay thickness) with "
+        "ground hatch between them.",
+    severity=Severity.WARNING,
+    thresholds=("electrode_min_spacing_mm",),
+)
+def electrodes_too_close(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """Electrodes closer than a finger's width are touched together and couple
+    to each other; the spread of the field through the cover grows with its
+    thickness, so spacing must be at least the overlay thickness as well.
+    Segments of one slider or wheel are meant to be close and are exempt."""
+    surround = sensor.surroundings
+    if surround is None or surround.nearest_sensor_mm is None:
+        return
+    other = next((s for s in call.board.sensors if s.name == surround.nearest_sensor), None)
+    if other is not None and sensor.group and other.group == sensor.group:
+        return
+    limit_mm = max(call.limits["electrode_min_spacing_mm"],
+                   call.board.settings.overlay_thickness_mm)
+    if surround.nearest_sensor_mm < limit_mm - EPS_MM and not _reported_by(other, sensor):
+        yield call.finding(
+            f"{surround.nearest_sensor_mm:.2f} mm from {surround.nearest_sensor}, "
+            f"less than {limit_mm:.2f} mm", sensor,
+            (("spacing_mm", surround.nearest_sensor_mm), ("min_mm", limit_mm)),
+            nets=sensor.nets + (other.nets if other else ()),
+            refs=sensor.refs + (other.refs if other else ()))
+
+
+@board_rule(
+    "electrodes-share-net",
+    title="Two electrodes joined on one net",
+    fix="Give each electrode its own net and controller pin; if they are meant to act as "
+        "one key, draw them as one electrode.",
+    severity=Severity.ERROR,
+)
+def electrodes_share_net(call: RuleCall) -> Iterator[Finding]:
+    """Two electrodes on one net are one sensor to the controller: a touch on
+    either reads the same and the pair has the baseline of both. It is usually
+    a copy-paste or a net-label mistake. Mutual-capacitance transmit lines are
+    shared on purpose and are exempt."""
+    by_net: dict[str, list[Sensor]] = {}
+    for sensor in call.board.sensors:
+        if sensor.kind == "mutual-tx":
+            continue
+        for net in sensor.nets:
+            if net:
+                by_net.setdefault(net, []).append(sensor)
+    for net in sorted(by_net):
+        joined = sorted(by_net[net], key=lambda s: s.name)
+        if len(joined) < 2:
+            continue
+        names = ", ".join(s.name for s in joined)
+        yield call.finding(
+            f"electrodes {names} are all on net {net}", joined[0],
+            (("electrodes", float(len(joined))),), nets=(net,),
+            refs=tuple(r for s in joined for r in s.refs))
+
+
+def _reported_by(other: Sensor | None, sensor: Sensor) -> bool:
+    """True when ``other`` reports the same pair (so one finding per pair)."""
+    if other is None or other.surroundings is None:
+        return False
+    return other.surroundings.nearest_sensor == sensor.name and other.name < sensor.name

@@ -1,0 +1,182 @@
+"""Rules about what surrounds an electrode: ground gap, copper under it,
+floating copper, noisy parts and the size of the device ground."""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+
+from auditor.rules.context import EPS_MM
+from auditor.rules.finding import Finding, Severity
+from auditor.rules.registry import RuleCall, sensor_rule
+from auditor.sensors.model import Sensor
+
+
+@sensor_rule(
+    "ground-gap-tight",
+    title="Ground too close around the electrode",
+    fix="Widen the clearance between the electrode and the surrounding copper (about the "
+        "overlay thickness, 0.5-2 mm).",
+    severity=Severity.WARNING,
+    thresholds=("ground_gap_min_mm", "segment_gap_min_mm"),
+)
+def ground_gap_tight(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """Copper close around the pad's edge holds field lines that would
+    otherwise reach the finger: the baseline Cp rises and the touch signal ΔC
+    falls, so the relative change shrinks on both counts. Slider and wheel
+    segments sit close to each other by design, so they have their own,
+    smaller limit."""
+    surround = sensor.surroundings
+    if surround is None:
+        return
+    segment = sensor.kind in ("slider", "wheel")
+    checks = [(surround.min_gap_mm, "surrounding copper",
+               call.limits["segment_gap_min_mm" if segment else "ground_gap_min_mm"])]
+    if segment:  # the ground itself, measured apart from the neighbouring segments
+        checks.append((surround.min_ground_gap_mm, f"ground {surround.ground_net}",
+                       call.limits["ground_gap_min_mm"]))
+    for gap_mm, what, limit_mm in checks:
+        if gap_mm is not None and gap_mm < limit_mm - EPS_MM:
+            yield call.finding(
+                f"gap to {what} is {gap_mm:.2f} mm, less than {limit_mm:.2f} mm", sensor,
+                (("gap_mm", gap_mm), ("min_mm", limit_mm)))
+            return
+
+
+@sensor_rule(
+    "ground-gap-wide",
+    title="Ground too far from the electrode",
+    fix="Bring the ground hatch closer (gap about the overlay thickness, at most about 2 mm) "
+        "so every pad sees a similar, defined reference.",
+    severity=Severity.INFO,
+    thresholds=("ground_gap_max_mm",),
+    kinds=("button", "slider", "wheel", "mutual-tx", "mutual-rx"),
+)
+def ground_gap_wide(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """A wide, uneven gap leaves the pad's baseline set by whatever happens to
+    be nearby (other traces, the enclosure, water) instead of a defined ground,
+    so it drifts and differs from pad to pad; no ground near the pad at all is
+    the extreme case. Proximity electrodes want ground far away and are
+    exempt."""
+    surround = sensor.surroundings
+    if surround is None:
+        return
+    gap_mm = (surround.typical_ground_gap_mm if surround.typical_ground_gap_mm is not None
+              else surround.typical_gap_mm)
+    limit_mm = call.limits["ground_gap_max_mm"]
+    if gap_mm is None:
+        yield call.finding("no ground copper was found close around the electrode", sensor,
+                           (("max_mm", limit_mm),))
+    elif gap_mm > limit_mm + EPS_MM:
+        yield call.finding(
+            f"typical gap to ground is {gap_mm:.2f} mm, more than {limit_mm:.2f} mm", sensor,
+            (("gap_mm", gap_mm), ("max_mm", limit_mm)))
+
+
+@sensor_rule(
+    "copper-under-electrode",
+    title="Solid or too-dense copper under the electrode",
+    fix="Under the electrode use a ground hatch of at most the profile's fill ratio, or no "
+        "copper at all on two-layer boards; keep other signals out from under it.",
+    severity=Severity.WARNING,
+    thresholds=("under_shadow_min_fraction", "under_fill_max_ratio"),
+)
+def copper_under_electrode(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """Copper on another layer under the pad forms a parallel-plate capacitor
+    with it through the board: with a 1.6 mm FR-4 board and a solid plane the
+    baseline can exceed the controller's range and the relative change under a
+    finger collapses. A hatch lowers that in proportion to its fill."""
+    surround = sensor.surroundings
+    if surround is None:
+        return
+    min_fraction = call.limits["under_shadow_min_fraction"]
+    max_fill = call.limits["under_fill_max_ratio"]
+    for shadow in sorted(surround.shadows, key=lambda s: s.layer):
+        if shadow.fill == "none" or shadow.shadowed_fraction < min_fraction:
+            continue
+        if shadow.fill_ratio > max_fill + 1e-9:
+            yield call.finding(
+                f"{shadow.fill} copper on {shadow.layer} covers "
+                f"{100 * shadow.shadowed_fraction:.0f} % of the electrode with "
+                f"{100 * shadow.fill_ratio:.0f} % fill (limit {100 * max_fill:.0f} %)",
+                sensor,
+                (("shadowed_fraction", shadow.shadowed_fraction),
+                 ("fill_ratio", shadow.fill_ratio), ("max_fill_ratio", max_fill)),
+                nets=sensor.nets + shadow.nets, layer=shadow.layer)
+
+
+@sensor_rule(
+    "floating-copper-near",
+    title="Floating copper near an electrode",
+    fix="Tie the copper to ground (or to the shield) or remove it.",
+    severity=Severity.WARNING,
+    thresholds=("floating_copper_min_mm",),
+)
+def floating_copper_near(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """Unconnected copper takes up a potential set by whatever couples to it;
+    near a pad it couples the finger's field sideways and makes the baseline
+    depend on the copper's surroundings, which shift with humidity and
+    handling."""
+    surround = sensor.surroundings
+    if surround is None:
+        return
+    limit_mm = call.limits["floating_copper_min_mm"]
+    for x_mm, y_mm, distance_mm in sorted(surround.floating_copper):
+        if distance_mm < limit_mm - EPS_MM:
+            yield call.finding(
+                f"floating copper at ({x_mm:.2f}, {y_mm:.2f}) is {distance_mm:.2f} mm from "
+                f"the electrode, less than {limit_mm:.2f} mm", sensor,
+                (("distance_mm", distance_mm), ("min_mm", limit_mm)), x_mm=x_mm, y_mm=y_mm)
+
+
+@sensor_rule(
+    "noisy-part-near",
+    title="Noisy part near an electrode",
+    fix="Move LEDs, inductors, regulators and crystals (and their traces) away from the "
+        "electrode, or switch them off while measuring.",
+    severity=Severity.WARNING,
+    thresholds=("noisy_part_min_mm",),
+)
+def noisy_part_near(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """Switching parts inject charge into a nearby electrode through their
+    stray capacitance; the injected charge shows up as noise, or as a false
+    touch when an LED on the same key toggles."""
+    surround = sensor.surroundings
+    if surround is None:
+        return
+    limit_mm = call.limits["noisy_part_min_mm"]
+    for ref, distance_mm in sorted(surround.noisy_parts):
+        if distance_mm < limit_mm - EPS_MM:
+            yield call.finding(
+                f"{ref} is {distance_mm:.2f} mm from the electrode, less than "
+                f"{limit_mm:.2f} mm", sensor,
+                (("distance_mm", distance_mm), ("min_mm", limit_mm)),
+                refs=sensor.refs + (ref,))
+
+
+@sensor_rule(
+    "ground-ratio-small",
+    title="Device ground small next to the electrode",
+    fix="Enlarge the ground copper of the device (pour ground on free areas of both layers) "
+        "or, for a battery device, expect less signal than with a grounded product.",
+    severity=Severity.WARNING,
+    thresholds=("ground_to_pad_min_ratio",),
+)
+def ground_ratio_small(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """The finger's signal returns to the circuit through the device ground's
+    coupling to the user and to earth. A battery device whose ground copper is
+    not much larger than its electrodes couples weakly, so part of the signal
+    is lost (physics.md §3, floating reduction). Mains products are tied to
+    earth through the supply and are exempt."""
+    surround = sensor.surroundings
+    if surround is None or not surround.ground_net or sensor.area_mm2 <= 0:
+        return
+    if call.board.settings.power == "mains":
+        return
+    ratio = surround.ground_area_mm2 / sensor.area_mm2
+    limit = call.limits["ground_to_pad_min_ratio"]
+    if ratio < limit:
+        yield call.finding(
+            f"ground {surround.ground_net} has {surround.ground_area_mm2:.0f} mm² of copper, "
+            f"{ratio:.1f} times the electrode (want at least {limit:.1f})", sensor,
+            (("ground_to_pad_ratio", ratio), ("min_ratio", limit)),
+            nets=sensor.nets + (surround.ground_net,))

@@ -1,0 +1,76 @@
+"""Rules on the field-solve results (baseline Cp, touch signal ΔC, ratio).
+
+They yield nothing for sensors without metrics (the field step did not run
+or could not solve them; the report marks those sensors ``unsolved``).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+
+from auditor.rules.finding import Finding, Severity
+from auditor.rules.registry import RuleCall, sensor_rule
+from auditor.sensors.model import Sensor
+
+
+@sensor_rule(
+    "cp-too-high",
+    title="Baseline capacitance above the controller's range",
+    fix="Lower Cp: thinner or shorter trace, hatch instead of solid ground under and around "
+        "the pad, wider ground gap, smaller pad.",
+    severity=Severity.WARNING,
+    thresholds=("controller_max_cp_pf",),
+)
+def cp_too_high(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """A controller measures a touch as a change on top of the baseline; above
+    its design range the baseline uses up the measurement range and the
+    resolution left for the finger's change drops."""
+    metrics = call.board.metrics.get(sensor.name)
+    if metrics is None:
+        return
+    limit = call.limits["controller_max_cp_pf"]
+    if metrics.cp_total_pf > limit + 1e-12:
+        yield call.finding(
+            f"baseline Cp {metrics.cp_total_pf:.1f} pF exceeds {limit:.1f} pF", sensor,
+            (("cp_total_pf", metrics.cp_total_pf), ("max_pf", limit)))
+
+
+@sensor_rule(
+    "delta-c-low",
+    title="Touch signal too small",
+    fix="Grow the pad, thin the overlay (or use a higher-permittivity one), remove any air "
+        "gap between cover and board.",
+    severity=Severity.WARNING,
+    thresholds=("min_delta_c_pf",),
+)
+def delta_c_low(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """The finger's added capacitance ΔC must stand clear of the noise; below
+    the design minimum small changes of the environment look like touches."""
+    metrics = call.board.metrics.get(sensor.name)
+    if metrics is None:
+        return
+    limit = call.limits["min_delta_c_pf"]
+    if metrics.delta_c_pf < limit - 1e-12:
+        yield call.finding(
+            f"touch signal ΔC {metrics.delta_c_pf:.3f} pF is below {limit:.3f} pF", sensor,
+            (("delta_c_pf", metrics.delta_c_pf), ("min_pf", limit)))
+
+
+@sensor_rule(
+    "ratio-low",
+    title="Touch signal small relative to the baseline",
+    fix="Lower the baseline (see cp-too-high) or raise the signal (see delta-c-low).",
+    severity=Severity.WARNING,
+    thresholds=("min_delta_ratio",),
+)
+def ratio_low(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """Most sensing methods resolve a change relative to the baseline; a
+    small ΔC/Cp leaves little margin over drift and noise."""
+    metrics = call.board.metrics.get(sensor.name)
+    if metrics is None:
+        return
+    limit = call.limits["min_delta_ratio"]
+    if metrics.delta_ratio < limit - 1e-12:
+        yield call.finding(
+            f"ΔC/Cp is {100 * metrics.delta_ratio:.2f} %, below {100 * limit:.2f} %", sensor,
+            (("delta_ratio", metrics.delta_ratio), ("min_ratio", limit)))

@@ -1,0 +1,233 @@
+"""Rule profiles: named TOML files of thresholds and rule levels.
+
+A profile file has ``description``, optionally ``extends`` (a built-in name
+or a path relative to the file), a ``[thresholds]`` table and a ``[rules]``
+table mapping rule ids to ``error``/``warning``/``info``/``off``. Each
+threshold in a built-in profile carries a comment naming its origin (one of
+:data:`ORIGIN_MARKERS`) on the lines directly above it.
+
+Built-in profiles live in the repository's top-level ``rules/`` folder and
+ship inside the wheel as ``auditor/_profiles``; :func:`profile_dirs` finds
+them in either place.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from auditor.errors import ConfigError
+from auditor.rules.context import ThresholdValue
+from auditor.rules.finding import Severity
+from auditor.rules.registry import all_rules
+from auditor.rules.tomlfile import key_line, read_toml
+
+#: Every threshold comment in a built-in profile contains one of these.
+ORIGIN_MARKERS = ("published:", "common practice, no source", "from memory")
+
+#: Thresholds read by the measuring stage or the revision comparison rather
+#: than by a rule.
+MEASUREMENT_THRESHOLDS: Mapping[str, str] = {
+    "parallel_distance_mm": "distance within which a neighbouring net counts as running "
+                            "beside the sense trace",
+    "nearby_radius_mm": "radius around an electrode within which parts and floating copper "
+                        "are listed",
+    "max_ratio_loss": "largest loss of a pad's dC/Cp between two revisions, as a fraction "
+                      "(padaudit diff, audit --against)",
+}
+
+LEVELS = ("error", "warning", "info", "off")
+
+#: Rules that keep a partly read or empty audit from passing silently: their
+#: level may change, but turning them off needs a waiver with a reason.
+CANNOT_BE_OFF = ("no-sensors", "read-incomplete")
+_PROFILE_KEYS = ("description", "extends", "thresholds", "rules")
+
+
+@dataclass(frozen=True)
+class Profile:
+    """A resolved profile (its ``extends`` chain already merged)."""
+
+    name: str
+    description: str
+    thresholds: Mapping[str, ThresholdValue]
+    levels: Mapping[str, str] = field(default_factory=dict)  # rule id -> level or "off"
+    origins: Mapping[str, str] = field(default_factory=dict)  # threshold -> origin note
+    chain: tuple[str, ...] = ()  # names/paths from this profile to its root
+
+    def level_of(self, rule_id: str) -> str | None:
+        """The profile's level for a rule, or ``None`` to keep its default."""
+        return self.levels.get(rule_id)
+
+
+def profile_dirs(package: Path | None = None) -> tuple[Path, ...]:
+    """Folders holding built-in profiles, in search order: the source tree's
+    ``rules/`` beside the ``auditor`` package, then the wheel's
+    ``auditor/_profiles`` (``package`` defaults to this ``auditor`` folder)."""
+    package = package or Path(__file__).resolve().parent.parent
+    candidates = (package.parent / "rules", package / "_profiles")
+    return tuple(d for d in candidates if d.is_dir() and any(d.glob("*.toml")))
+
+
+def builtin_profile_names() -> tuple[str, ...]:
+    """Names of the built-in profiles, sorted."""
+    return tuple(sorted({p.stem for d in profile_dirs() for p in d.glob("*.toml")}))
+
+
+def builtin_profile_path(name: str) -> Path:
+    """The file of a built-in profile.
+
+    Raises
+    ------
+    ConfigError
+        When there is no such profile (the valid names listed).
+    """
+    for folder in profile_dirs():
+        candidate = folder / f"{name}.toml"
+        if candidate.is_file():
+            return candidate
+    choices = ", ".join(builtin_profile_names()) or "(none installed)"
+    raise ConfigError(name, f"unknown profile {name!r}; choose one of: {choices}, or a path "
+                            "to a .toml profile")
+
+
+def known_thresholds() -> dict[str, tuple[str, ...]]:
+    """Every threshold name, with the rules that read it."""
+    names: dict[str, list[str]] = {n: [] for n in MEASUREMENT_THRESHOLDS}
+    for spec in all_rules():
+        for threshold in spec.thresholds:
+            names.setdefault(threshold, []).append(spec.rule_id)
+    return {k: tuple(v) for k, v in sorted(names.items())}
+
+
+def load_profile(name_or_path: str, base_dir: Path | None = None) -> Profile:
+    """Load a built-in profile by name, or a profile file by path.
+
+    A value containing ``/`` or ending in ``.toml`` is a path (relative to
+    ``base_dir``); anything else is a built-in name.
+    """
+    return _load(_resolve(name_or_path, base_dir), ())
+
+
+def _resolve(name_or_path: str, base_dir: Path | None) -> Path:
+    if "/" in name_or_path or "\\" in name_or_path or name_or_path.endswith(".toml"):
+        path = Path(name_or_path)
+        if not path.is_absolute() and base_dir is not None:
+            path = base_dir / path
+        if not path.is_file():
+            raise ConfigError(path, "profile file not found")
+        return path
+    return builtin_profile_path(name_or_path)
+
+
+def _load(path: Path, seen: tuple[Path, ...]) -> Profile:
+    resolved = path.resolve()
+    if resolved in seen:
+        raise ConfigError(path, "profile extends itself (cycle: "
+                                + " -> ".join(p.name for p in (*seen, resolved)) + ")")
+    table, text = read_toml(path)
+    _check_keys(table, text, path)
+    own_thresholds = _thresholds(table.get("thresholds", {}), text, path)
+    own_levels = _levels(table.get("rules", {}), text, path)
+    origins = threshold_notes(text)
+    name = path.stem
+    parent_name = table.get("extends")
+    if parent_name is None:
+        return Profile(name, str(table.get("description", "")), own_thresholds, own_levels,
+                       {k: origins.get(k, "") for k in own_thresholds}, (name,))
+    if not isinstance(parent_name, str):
+        raise ConfigError(path, "extends must be a profile name or path",
+                          key_line(text, "extends"))
+    parent = _load(_resolve(parent_name, path.parent), (*seen, resolved))
+    return Profile(
+        name, str(table.get("description", parent.description)),
+        {**parent.thresholds, **own_thresholds}, {**parent.levels, **own_levels},
+        {**parent.origins, **{k: origins.get(k, "") for k in own_thresholds}},
+        (name, *parent.chain))
+
+
+def _check_keys(table: Mapping[str, Any], text: str, path: Path) -> None:
+    for key in table:
+        if key not in _PROFILE_KEYS:
+            raise ConfigError(path, f"unknown profile key {key!r}; valid keys: "
+                              + ", ".join(_PROFILE_KEYS), key_line(text, key))
+
+
+def _thresholds(raw: Any, text: str, path: Path) -> dict[str, ThresholdValue]:
+    if not isinstance(raw, dict):
+        raise ConfigError(path, "[thresholds] must be a table", key_line(text, "thresholds"))
+    known = known_thresholds()
+    out: dict[str, ThresholdValue] = {}
+    for key, value in raw.items():
+        line = key_line(text, key, "thresholds")
+        if key not in known:
+            raise ConfigError(path, f"unknown threshold {key!r}; valid thresholds: "
+                              + ", ".join(known), line)
+        if not isinstance(value, (bool, int, float)) or not math.isfinite(value):
+            raise ConfigError(path, f"threshold {key!r} must be a finite number or "
+                                    "true/false", line)
+        out[key] = value
+    return out
+
+
+def _levels(raw: Any, text: str, path: Path) -> dict[str, str]:
+    if not isinstance(raw, dict):
+        raise ConfigError(path, "[rules] must be a table", key_line(text, "rules"))
+    return {rule_id: check_level(rule_id, level, path, key_line(text, rule_id, "rules"))
+            for rule_id, level in raw.items()}
+
+
+def check_level(rule_id: str, level: Any, path: str | Path, line: int | None) -> str:
+    """Validate one ``rule id -> level`` entry (used by profiles and config)."""
+    ids = [spec.rule_id for spec in all_rules()]
+    if rule_id not in ids:
+        raise ConfigError(path, f"unknown rule {rule_id!r}; valid rules: {', '.join(ids)}",
+                          line)
+    if not isinstance(level, str) or level.strip().lower() not in LEVELS:
+        raise ConfigError(path, f"level of {rule_id!r} must be one of: {', '.join(LEVELS)}",
+                          line)
+    if level.strip().lower() == "off" and rule_id in CANNOT_BE_OFF:
+        raise ConfigError(path, f"{rule_id} cannot be turned off (it keeps an incomplete "
+                                "audit from passing); waive it with a reason instead", line)
+    return level.strip().lower()
+
+
+def severity_of_level(level: str) -> Severity | None:
+    """``None`` for ``off``, else the severity."""
+    return None if level == "off" else Severity.parse(level)
+
+
+_KEY = re.compile(r"^\s*([A-Za-z0-9_-]+)\s*=")
+
+
+def threshold_notes(text: str) -> dict[str, str]:
+    """For each key in ``[thresholds]``, the comment lines directly above it
+    (and a trailing comment on its own line), joined."""
+    notes: dict[str, str] = {}
+    comments: list[str] = []
+    in_table = False
+    for raw in text.splitlines():
+        stripped = raw.strip()
+        if stripped.startswith("["):
+            in_table = stripped.strip("[] ") == "thresholds"
+            comments = []
+        elif stripped.startswith("#"):
+            comments.append(stripped.lstrip("#").strip())
+        elif in_table and _KEY.match(raw):
+            key = _KEY.match(raw).group(1)  # type: ignore[union-attr]
+            trailing = raw.split("#", 1)[1].strip() if "#" in raw else ""
+            notes[key] = " ".join(c for c in (*comments, trailing) if c)
+            comments = []
+        else:
+            comments = []
+    return notes
+
+
+def has_origin(note: str) -> bool:
+    """True when a threshold note names its origin."""
+    lowered = note.lower()
+    return any(marker in lowered for marker in ORIGIN_MARKERS)

@@ -1,0 +1,244 @@
+"""Rules about the sense path from the electrode to the controller pin."""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+
+from auditor.rules.context import EPS_MM
+from auditor.rules.finding import Finding, Severity
+from auditor.rules.registry import RuleCall, sensor_rule
+from auditor.sensors.model import Neighbour, Sensor
+
+
+@sensor_rule(
+    "trace-unfollowed",
+    title="Sense path could not be followed to a controller pin",
+    fix="Check the net is routed completely (no unrouted ratsnest, no broken track) and that "
+        "the controller is a footprint on the board; set `controller` in the configuration.",
+    severity=Severity.WARNING,
+)
+def trace_unfollowed(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """The trace rules (length, vias, neighbours, series resistor) judge the
+    followed path only. When it stops short of a controller pin, those rules
+    saw part of the trace, so the sensor must not be reported as clean."""
+    path = sensor.path
+    if path is None:
+        yield call.finding("no sense path was measured for this electrode", sensor)
+    elif not path.complete:
+        yield call.finding(
+            f"the sense path stops after {path.length_mm:.1f} mm before reaching a "
+            "controller pin", sensor, (("length_mm", path.length_mm),))
+
+
+@sensor_rule(
+    "trace-too-long",
+    title="Sense trace too long",
+    fix="Place the controller closer to the electrode or route the trace more directly.",
+    severity=Severity.WARNING,
+    thresholds=("trace_max_length_mm",),
+)
+def trace_too_long(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """Every millimetre of trace adds baseline capacitance (about
+    0.04-0.06 pF/mm over ground) and picks up noise, while adding no signal."""
+    path = sensor.path
+    if path is None:
+        return
+    limit_mm = call.limits["trace_max_length_mm"]
+    if path.length_mm > limit_mm + EPS_MM:
+        yield call.finding(
+            f"sense trace is {path.length_mm:.1f} mm long, more than {limit_mm:.1f} mm",
+            sensor, (("length_mm", path.length_mm), ("max_mm", limit_mm)))
+
+
+@sensor_rule(
+    "trace-too-wide",
+    title="Sense trace wider than needed",
+    fix="Route the sense trace as thin as the fabricator allows (0.1-0.2 mm).",
+    severity=Severity.WARNING,
+    thresholds=("trace_max_width_mm",),
+)
+def trace_too_wide(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """The trace's capacitance to ground grows with its width; a sense trace
+    carries no current, so width buys nothing."""
+    path = sensor.path
+    if path is None or not path.runs:
+        return
+    limit_mm = call.limits["trace_max_width_mm"]
+    widest = max(path.runs, key=lambda run: (run.width_mm, run.layer))
+    if widest.width_mm > limit_mm + EPS_MM:
+        wide_mm = sum(r.length_mm for r in path.runs if r.width_mm > limit_mm + EPS_MM)
+        yield call.finding(
+            f"{wide_mm:.1f} mm of the sense trace is wider than {limit_mm:.2f} mm "
+            f"(widest {widest.width_mm:.2f} mm on {widest.layer})", sensor,
+            (("width_mm", widest.width_mm), ("max_mm", limit_mm), ("wide_length_mm", wide_mm)),
+            layer=widest.layer)
+
+
+@sensor_rule(
+    "trace-too-many-vias",
+    title="Too many vias on the sense trace",
+    fix="Route the sense trace on one layer where possible; at most the profile's number of "
+        "vias.",
+    severity=Severity.WARNING,
+    thresholds=("trace_max_vias",),
+)
+def trace_too_many_vias(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """Each via passing ground planes adds about 0.3-0.5 pF (Johnson & Graham,
+    High-Speed Digital Design, 1993, via capacitance formula) and a layer
+    change exposes the trace to both layers' neighbours."""
+    path = sensor.path
+    if path is None:
+        return
+    limit = call.limits["trace_max_vias"]
+    if path.vias > limit:
+        yield call.finding(
+            f"sense trace has {path.vias} vias, more than {limit:.0f}", sensor,
+            (("vias", float(path.vias)), ("max", limit)))
+
+
+def _noisy(neighbour: Neighbour, call: RuleCall) -> bool:
+    return neighbour.noisy or call.board.settings.is_noisy_net(neighbour.net)
+
+
+@sensor_rule(
+    "trace-parallel-run",
+    title="Sense trace runs beside another net",
+    fix="Separate the sense trace from the other net (2 mm or more, or a ground hatch between) "
+        "and avoid running them side by side; two sense traces need a spacing of at least "
+        "twice their width.",
+    severity=Severity.WARNING,
+    thresholds=("parallel_max_mm", "sense_spacing_widths"),
+)
+def trace_parallel_run(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """Mutual capacitance between two parallel traces grows with the length
+    they run together; a signal on the other net then couples straight into
+    the measurement. Two sense lines (another electrode's trace, before or
+    after its series resistor) are quiet neighbours: they only need a spacing
+    of a few trace widths."""
+    path = sensor.path
+    if path is None:
+        return
+    limit_mm = call.limits["parallel_max_mm"]
+    width_mm = max((r.width_mm for r in path.runs), default=0.0)
+    sense_gap_mm = call.limits["sense_spacing_widths"] * width_mm
+    for neighbour in sorted(path.neighbours, key=lambda n: n.net):
+        is_sense = neighbour.sense or neighbour.net in call.board.settings.sense_nets
+        if is_sense and neighbour.min_distance_mm >= sense_gap_mm - EPS_MM:
+            continue
+        if neighbour.parallel_mm > limit_mm + EPS_MM:
+            yield call.finding(
+                f"runs {neighbour.parallel_mm:.1f} mm beside net {neighbour.net}, more than "
+                f"{limit_mm:.1f} mm", sensor,
+                (("parallel_mm", neighbour.parallel_mm), ("max_mm", limit_mm)),
+                nets=sensor.nets + (neighbour.net,))
+
+
+@sensor_rule(
+    "trace-near-noisy-net",
+    title="Sense trace close to a noisy net",
+    fix="Keep switching, PWM and communication nets well away from the sense trace; cross "
+        "them only at right angles on another layer.",
+    severity=Severity.ERROR,
+    thresholds=("noisy_net_min_mm",),
+)
+def trace_near_noisy_net(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """Fast edges on a nearby net inject charge through even a small mutual
+    capacitance; the controller integrates it as signal."""
+    path = sensor.path
+    if path is None:
+        return
+    limit_mm = call.limits["noisy_net_min_mm"]
+    for neighbour in sorted(path.neighbours, key=lambda n: n.net):
+        if _noisy(neighbour, call) and neighbour.min_distance_mm < limit_mm - EPS_MM:
+            yield call.finding(
+                f"noisy net {neighbour.net} comes within {neighbour.min_distance_mm:.2f} mm, "
+                f"less than {limit_mm:.2f} mm", sensor,
+                (("distance_mm", neighbour.min_distance_mm), ("min_mm", limit_mm)),
+                nets=sensor.nets + (neighbour.net,))
+
+
+@sensor_rule(
+    "trace-crossings",
+    title="Sense trace crosses many other nets",
+    fix="Reduce the crossings; where the sense trace must cross, do it at right angles.",
+    severity=Severity.INFO,
+    thresholds=("trace_max_crossings",),
+)
+def trace_crossings(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """A crossing on an adjacent layer is a small capacitor to the other net;
+    one or two at right angles are normal, many add up to coupling and Cp."""
+    path = sensor.path
+    if path is None:
+        return
+    crossed = sorted((n for n in path.neighbours if n.crossings > 0), key=lambda n: n.net)
+    total = sum(n.crossings for n in crossed)
+    limit = call.limits["trace_max_crossings"]
+    if total > limit:
+        yield call.finding(
+            f"sense trace crosses other nets {total} times, more than {limit:.0f}", sensor,
+            (("crossings", float(total)), ("max", limit)),
+            nets=sensor.nets + tuple(n.net for n in crossed))
+
+
+@sensor_rule(
+    "trace-under-electrode",
+    title="Sense trace passes under or beside another electrode",
+    fix="Route the trace around other electrodes, not under or beside them.",
+    severity=Severity.WARNING,
+)
+def trace_under_electrode(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """A sense trace under another electrode is itself touched through it: a
+    finger on the other key shows up on this one too."""
+    path = sensor.path
+    if path is None:
+        return
+    for other in sorted(set(path.under_electrodes)):
+        yield call.finding(f"sense trace passes under or beside electrode {other}", sensor,
+                           nets=sensor.nets + _nets_of(other, call))
+
+
+def _nets_of(sensor_name: str, call: RuleCall) -> tuple[str, ...]:
+    for s in call.board.sensors:
+        if s.name == sensor_name:
+            return s.nets
+    return ()
+
+
+@sensor_rule(
+    "series-resistor-missing",
+    title="No series resistor on the sense line",
+    fix="Add a series resistor (typically 470 Ω - 2.2 kΩ) close to the controller pin.",
+    severity=Severity.WARNING,
+)
+def series_resistor_missing(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """A series resistor at the controller pin limits ESD current into it and,
+    with the pin's capacitance, filters radio-frequency noise picked up by the
+    electrode and trace."""
+    path = sensor.path
+    if path is None or not path.complete or path.series_ref:
+        return
+    yield call.finding(
+        f"the path reaches {path.controller_ref or 'the controller'} without a series part",
+        sensor, refs=sensor.refs + ((path.controller_ref,) if path.controller_ref else ()))
+
+
+@sensor_rule(
+    "series-resistor-far",
+    title="Series resistor far from the controller pin",
+    fix="Place the series resistor right next to the controller pin.",
+    severity=Severity.WARNING,
+    thresholds=("series_max_to_pin_mm",),
+)
+def series_resistor_far(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """Trace between the resistor and the pin is unfiltered: noise and ESD
+    picked up there reach the pin without the resistor's protection."""
+    path = sensor.path
+    if path is None or not path.series_ref or path.series_to_pin_mm is None:
+        return
+    limit_mm = call.limits["series_max_to_pin_mm"]
+    if path.series_to_pin_mm > limit_mm + EPS_MM:
+        yield call.finding(
+            f"{path.series_ref} is {path.series_to_pin_mm:.1f} mm of trace from the controller "
+            f"pin, more than {limit_mm:.1f} mm", sensor,
+            (("distance_mm", path.series_to_pin_mm), ("max_mm", limit_mm)),
+            refs=sensor.refs + (path.series_ref,))

@@ -1,0 +1,54 @@
+"""Floating copper near an electrode: net-less copper, and islands of a net's
+zone that touch nothing else of that net (no pad, via, track or graphic).
+
+Net-less copper already merged into an electrode (it touches the anchor pad)
+is part of that electrode, not floating. Each find is reported at its point
+nearest to the electrode, with the edge-to-edge distance.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+from shapely.geometry.base import BaseGeometry
+from shapely.ops import nearest_points
+
+from auditor.model.board import Board
+from auditor.sensors.model import Sensor
+from auditor.sensors.spatial import grown, items_in_box, polygons, zone_islands
+
+
+def floating_copper_near(board: Board, sensor: Sensor, others: Sequence[Sensor],
+                         radius_mm: float) -> tuple[tuple[float, float, float], ...]:
+    """(x, y, distance mm) of floating copper within ``radius_mm``, nearest first."""
+    bounds = grown(sensor.geometry.bounds, radius_mm)
+    electrodes = [*others, sensor]
+    candidates: list[tuple[str, BaseGeometry]] = []
+    for layer in board.copper_layers:
+        for item in items_in_box(board, layer, bounds,
+                                 lambda it: it.net == "" and it.source != "pad"):
+            candidates += [(layer, p) for p in polygons(item.geometry)]
+    candidates += [(isl.layer, isl.geometry) for isl in zone_islands(board)]
+    found: set[tuple[float, float, float]] = set()
+    for layer, piece in candidates:
+        if float(sensor.geometry.distance(piece)) <= radius_mm \
+                and not _in_electrode(piece, layer, electrodes) \
+                and not _tied(board, layer, piece):
+            found.add(_located(sensor.geometry, piece))
+    return tuple(sorted(found, key=lambda f: (f[2], f[0], f[1])))
+
+
+def _tied(board: Board, layer: str, piece: BaseGeometry) -> bool:
+    """Net-less copper touching copper of a net is connected, not floating."""
+    return any(item.geometry.intersects(piece) for item in items_in_box(
+        board, layer, piece.bounds, lambda it: it.net != "" and it.source != "zone"))
+
+
+def _in_electrode(piece: BaseGeometry, layer: str, electrodes: Sequence[Sensor]) -> bool:
+    probe = piece.representative_point()
+    return any(e.layer == layer and e.geometry.buffer(1e-6).contains(probe) for e in electrodes)
+
+
+def _located(electrode: BaseGeometry, piece: BaseGeometry) -> tuple[float, float, float]:
+    _, at = nearest_points(electrode, piece)
+    return (round(at.x, 6), round(at.y, 6), round(float(electrode.distance(piece)), 6))

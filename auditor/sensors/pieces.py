@@ -1,0 +1,140 @@
+"""Electrode-like copper: connected pieces of one net's area copper on an outer layer.
+
+Real boards draw electrodes as plain or custom pads, zones, or net-less
+footprint graphics around a small anchor pad (kicad-format.md §0.9, §14). A
+*piece* is one connected polygon of a net's pads, zones and graphics on one
+outer layer, with tracks and vias left out (they are the sense path), and with
+net-less copper merged in wherever it touches a pad of exactly one net.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Collection
+from dataclasses import dataclass
+
+from shapely import STRtree
+from shapely.geometry import MultiPolygon, Polygon
+from shapely.geometry.base import BaseGeometry
+from shapely.ops import unary_union
+
+from auditor.model.board import Board, CopperItem
+from auditor.model.items import Pad, Zone
+
+AREA_SOURCES = ("pad", "zone", "graphic")
+
+
+@dataclass(frozen=True)
+class Piece:
+    """One connected piece of area copper of one net on one layer."""
+
+    net: str
+    layer: str
+    geometry: BaseGeometry
+    pads: tuple[Pad, ...]
+    zones: tuple[Zone, ...]
+    sources: tuple[str, ...]  # sorted kinds: pad, custom pad, zone, graphic, net-less copper
+
+    @property
+    def area_mm2(self) -> float:
+        """Copper area of the piece."""
+        return float(self.geometry.area)
+
+    @property
+    def footprint_uids(self) -> tuple[str, ...]:
+        """Footprints with a pad in the piece, sorted."""
+        return tuple(sorted({p.footprint_uid for p in self.pads}))
+
+
+def outer_layers(board: Board) -> tuple[str, ...]:
+    """The outer copper layers (front first; one entry on a one-layer board)."""
+    layers = board.copper_layers
+    if not layers:
+        return ()
+    return (layers[0],) if len(layers) == 1 else (layers[0], layers[-1])
+
+
+def pieces_on(board: Board, layer: str, nets: Collection[str]) -> tuple[Piece, ...]:
+    """Area-copper pieces of ``nets`` on ``layer``, net-less copper merged in."""
+    items = [it for it in board.items_on(layer) if it.source in AREA_SOURCES]
+    netted = [it for it in items if it.net in nets]
+    extra = {net: geoms for net, geoms in _netless_by_net(board, layer, items).items()
+             if net in nets}
+    by_net: dict[str, list[CopperItem]] = {}
+    for it in netted:
+        by_net.setdefault(it.net, []).append(it)
+    pieces: list[Piece] = []
+    for net in sorted(set(by_net) | set(extra)):
+        own = by_net.get(net, [])
+        merged = extra.get(net, [])
+        union = unary_union([it.geometry for it in own] + merged)
+        for poly in _polygons(union):
+            pieces.append(_piece(board, net, layer, poly, own, bool(merged)))
+    return tuple(pieces)
+
+
+def _netless_by_net(board: Board, layer: str,
+                    items: list[CopperItem]) -> dict[str, list[BaseGeometry]]:
+    """Net-less copper components keyed by the one net whose pad they touch."""
+    loose = [it.geometry for it in items if it.net == "" and it.source != "pad"]
+    if not loose:
+        return {}
+    pads = [it for it in items if it.source == "pad" and it.net != ""]
+    tree = STRtree([it.geometry for it in pads])
+    out: dict[str, list[BaseGeometry]] = {}
+    for comp in _polygons(unary_union(loose)):
+        touched = {pads[i].net for i in tree.query(comp, predicate="intersects")}
+        if len(touched) == 1:
+            out.setdefault(touched.pop(), []).append(comp)
+    return out
+
+
+def _polygons(geom: BaseGeometry) -> list[Polygon]:
+    if isinstance(geom, Polygon):
+        return [] if geom.is_empty else [geom]
+    if isinstance(geom, MultiPolygon):
+        return sorted(geom.geoms, key=lambda p: (round(p.bounds[0], 6), round(p.bounds[1], 6)))
+    parts = getattr(geom, "geoms", ())
+    return [p for g in parts for p in _polygons(g)]
+
+
+def _piece(board: Board, net: str, layer: str, poly: Polygon, own: list[CopperItem],
+           netless: bool) -> Piece:
+    probe = poly.buffer(1e-6)
+    inside = [it for it in own if it.geometry.intersects(probe)]
+    pads = tuple(p for p in _pads_of(board, net) if _touches(p.geometry_on(layer), probe))
+    zones = tuple(z for z in _zones_of(board, net) if _touches(z.fill_on(layer), probe))
+    sources = {("custom pad" if p.shape == "custom" else "pad") for p in pads}
+    sources.update(it.source for it in inside if it.source != "pad")
+    if netless:
+        sources.add("net-less copper")
+    return Piece(net, layer, poly, pads, zones, tuple(sorted(sources)))
+
+
+def _pads_of(board: Board, net: str) -> tuple[Pad, ...]:
+    return pads_by_net(board).get(net, ())
+
+
+def _zones_of(board: Board, net: str) -> tuple[Zone, ...]:
+    return tuple(z for z in board.zones if z.net == net and not z.is_rule_area)
+
+
+_PADS_CACHE: dict[int, tuple[Board, dict[str, tuple[Pad, ...]]]] = {}
+
+
+def pads_by_net(board: Board) -> dict[str, tuple[Pad, ...]]:
+    """Pads grouped by net name (cached per board object)."""
+    hit = _PADS_CACHE.get(id(board))
+    if hit is not None and hit[0] is board:
+        return hit[1]
+    grouped: dict[str, list[Pad]] = {}
+    for pad in board.pads:
+        grouped.setdefault(pad.net, []).append(pad)
+    result = {net: tuple(pads) for net, pads in grouped.items()}
+    if len(_PADS_CACHE) > 8:
+        _PADS_CACHE.clear()
+    _PADS_CACHE[id(board)] = (board, result)
+    return result
+
+
+def _touches(geom: BaseGeometry | None, probe: BaseGeometry) -> bool:
+    return geom is not None and not geom.is_empty and geom.intersects(probe)

@@ -1,0 +1,202 @@
+"""Fast local views of a board's copper.
+
+Hatched pours are single polygons with thousands of holes; testing or
+cutting them against a small region costs time proportional to their size.
+So queries here go by bounding box first, filter by net, and cut big
+polygons with ``clip_by_rect`` (a linear-time rectangle clip) before any
+exact operation. Results that do not depend on the electrode (which zone
+pieces are islands) are computed once per board.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass
+
+import shapely
+from shapely import STRtree
+from shapely.geometry import MultiPolygon, Polygon
+from shapely.geometry.base import BaseGeometry
+from shapely.ops import unary_union
+
+from auditor.model.board import Board, CopperItem
+
+Bounds = tuple[float, float, float, float]
+
+
+#: Items with more vertices than this are cut into tiles for local queries.
+TILE_VERTICES = 400
+#: Tiles are not cut smaller than this (mm): a few hatch pitches.
+TILE_MM = 4.0
+
+
+@dataclass(frozen=True)
+class Piece:
+    """A copper item, or one tile of a big one (same net, source and layer)."""
+
+    item: CopperItem
+    geometry: BaseGeometry
+
+
+_TILES: dict[tuple[int, str], tuple[Board, tuple[Piece, ...], STRtree]] = {}
+
+
+def tiled(board: Board, layer: str) -> tuple[tuple[Piece, ...], STRtree]:
+    """The layer's copper with big items cut into ``TILE_MM`` tiles, and an index."""
+    key = (id(board), layer)
+    hit = _TILES.get(key)
+    if hit is not None and hit[0] is board:
+        return hit[1], hit[2]
+    pieces: list[Piece] = []
+    for item in board.items_on(layer):
+        if shapely.get_num_coordinates(item.geometry) <= TILE_VERTICES:
+            pieces.append(Piece(item, item.geometry))
+            continue
+        pieces += [Piece(item, tile) for tile in _tiles_of(item.geometry)]
+    tree = STRtree([p.geometry for p in pieces])
+    if len(_TILES) > 16:
+        _TILES.clear()
+    _TILES[key] = (board, tuple(pieces), tree)
+    return tuple(pieces), tree
+
+
+def _tiles_of(geom: BaseGeometry) -> list[BaseGeometry]:
+    """Halve along the longer side until each part is small (O(n log n) clipping)."""
+    if geom.is_empty or geom.area <= 0:
+        return []
+    x0, y0, x1, y1 = geom.bounds
+    small = max(x1 - x0, y1 - y0) <= TILE_MM
+    if small or shapely.get_num_coordinates(geom) <= TILE_VERTICES:
+        return [geom]
+    if x1 - x0 >= y1 - y0:
+        xm = (x0 + x1) / 2
+        halves = ((x0, y0, xm, y1), (xm, y0, x1, y1))
+    else:
+        ym = (y0 + y1) / 2
+        halves = ((x0, y0, x1, ym), (x0, ym, x1, y1))
+    return [t for box in halves for t in _tiles_of(shapely.clip_by_rect(geom, *box))]
+
+
+def pieces_in(board: Board, layer: str, region: BaseGeometry,
+              keep: Callable[[CopperItem], bool]) -> list[Piece]:
+    """Copper pieces on ``layer`` that meet ``region``, cut to it, of items ``keep`` accepts."""
+    pieces, tree = tiled(board, layer)
+    if not pieces:
+        return []
+    shapely.prepare(region)
+    found = []
+    for i in sorted(int(k) for k in tree.query(region)):
+        piece = pieces[i]
+        if not keep(piece.item) or not region.intersects(piece.geometry):
+            continue
+        if region.contains(piece.geometry):
+            found.append(piece)
+            continue
+        cut = piece.geometry.intersection(region)
+        if not cut.is_empty:
+            found.append(Piece(piece.item, cut))
+    return found
+
+
+def items_in_box(board: Board, layer: str, bounds: Bounds,
+                 keep: Callable[[CopperItem], bool]) -> list[CopperItem]:
+    """Items on ``layer`` whose boxes meet ``bounds`` and that ``keep`` accepts."""
+    items = board.items_on(layer)
+    if not items:
+        return []
+    box = shapely.box(*bounds)
+    return [items[int(i)] for i in sorted(board.spatial_index(layer).query(box))
+            if keep(items[int(i)])]
+
+
+def clipped(geometry: BaseGeometry, bounds: Bounds) -> BaseGeometry:
+    """``geometry`` cut to the rectangle ``bounds`` (cheap for big polygons)."""
+    return shapely.clip_by_rect(geometry, *bounds)
+
+
+def grown(bounds: Bounds, margin: float) -> Bounds:
+    """``bounds`` grown by ``margin`` on every side."""
+    return bounds[0] - margin, bounds[1] - margin, bounds[2] + margin, bounds[3] + margin
+
+
+def polygons(geom: BaseGeometry) -> list[Polygon]:
+    """The polygons in any geometry."""
+    if isinstance(geom, Polygon):
+        return [] if geom.is_empty else [geom]
+    if isinstance(geom, MultiPolygon):
+        return list(geom.geoms)
+    return [p for part in getattr(geom, "geoms", ()) for p in polygons(part)]
+
+
+@dataclass(frozen=True)
+class Island:
+    """A piece of a zone's fill that touches no other copper of its net."""
+
+    layer: str
+    net: str
+    geometry: Polygon
+
+
+_ISLANDS: dict[int, tuple[Board, tuple[Island, ...]]] = {}
+_AREAS: dict[tuple[int, str], tuple[Board, float]] = {}
+
+
+def zone_islands(board: Board) -> tuple[Island, ...]:
+    """Zone fill pieces with no pad, via, track or graphic of their net on them."""
+    hit = _ISLANDS.get(id(board))
+    if hit is not None and hit[0] is board:
+        return hit[1]
+    found: list[Island] = []
+    for zone in board.zones:
+        if zone.is_rule_area or not zone.net:
+            continue
+        for fill in zone.fills:
+            for piece in polygons(fill.geometry):
+                if not _connected(board, fill.layer, zone.net, piece):
+                    found.append(Island(fill.layer, zone.net, piece))
+    if len(_ISLANDS) > 8:
+        _ISLANDS.clear()
+    _ISLANDS[id(board)] = (board, tuple(found))
+    return tuple(found)
+
+
+def _connected(board: Board, layer: str, net: str, piece: Polygon) -> bool:
+    shapely.prepare(piece)
+    for item in items_in_box(board, layer, piece.bounds,
+                             lambda it: it.net == net and it.source != "zone"):
+        if piece.intersects(item.geometry):
+            return True
+    return False
+
+
+def net_copper_area(board: Board, net: str) -> float:
+    """Copper area of ``net`` over all layers (mm²).
+
+    Zone fills count whole (union per layer when several zones share one);
+    other items count for the part outside the fills. Overlaps between
+    non-zone items (a track end on its pad) are counted twice: a few mm² on
+    a ground of thousands, well inside what a pad-to-ground ratio needs.
+    """
+    key = (id(board), net)
+    hit = _AREAS.get(key)
+    if hit is not None and hit[0] is board:
+        return hit[1]
+    total = 0.0
+    for layer in board.copper_layers:
+        fills = [f.geometry for z in board.zones if z.net == net and not z.is_rule_area
+                 for f in z.fills if f.layer == layer]
+        fill = fills[0] if len(fills) == 1 else unary_union(fills)
+        total += float(fill.area)
+        pieces, tree = tiled(board, layer)
+        for item in board.items_on(layer):
+            if item.net != net or item.source == "zone":
+                continue
+            zone_parts = [pieces[int(i)].geometry for i in tree.query(item.geometry)
+                          if pieces[int(i)].item.source == "zone"
+                          and pieces[int(i)].item.net == net]
+            covered = sum(float(part.intersection(item.geometry).area) for part in zone_parts)
+            total += max(0.0, float(item.geometry.area) - covered)
+    if len(_AREAS) > 32:
+        _AREAS.clear()
+    _AREAS[key] = (board, total)
+    return total

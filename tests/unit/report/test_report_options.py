@@ -1,0 +1,116 @@
+"""The shared report options and emit(): outputs, colour, baseline, --against."""
+
+from __future__ import annotations
+
+import argparse
+import dataclasses
+import io
+import json
+from pathlib import Path
+
+import pytest
+import sample_report as sample
+from gitrepo import commit_file, new_repo
+
+from auditor.cli.report_options import add_report_options, emit
+from auditor.errors import UsageError
+from auditor.report.cautions import MAINS_CAUTION, with_cautions
+from auditor.report.model import Report
+
+
+def _args(*argv: str) -> argparse.Namespace:
+    parser = argparse.ArgumentParser()
+    add_report_options(parser)
+    return parser.parse_args(list(argv))
+
+
+def _emit(report: Report, *argv: str, env: dict[str, str] | None = None) -> tuple[int, str]:
+    out = io.StringIO()
+    code = emit(report, _args(*argv), stdout=out, env=env or {})
+    return code, out.getvalue()
+
+
+def test_output_file_is_written_even_when_the_run_fails(tmp_path: Path) -> None:
+    target = tmp_path / "r.json"
+    code, out = _emit(sample.sample_report(), "--format", "json", "--output", str(target))
+    assert code == 1
+    assert json.loads(target.read_text())["summary"]["exit_code"] == 1
+    assert out.startswith("padaudit: FAIL (incomplete: 1 item(s) skipped while reading): "
+                          "7 electrode(s), 6 finding(s), 3 failing")
+    code, out = _emit(sample.sample_report(), "--output", str(tmp_path / "r.txt"), "--quiet")
+    assert out == "" and "\x1b[" not in (tmp_path / "r.txt").read_text()
+
+
+def test_unwritable_output_is_a_usage_error(tmp_path: Path) -> None:
+    with pytest.raises(UsageError, match="cannot write"):
+        _emit(sample.sample_report(), "--output", str(tmp_path / "no" / "dir" / "r.txt"))
+
+
+@pytest.mark.parametrize(("argv", "env", "escapes"), [
+    (("--color", "never"), {}, False),
+    (("--color", "always"), {}, True),
+    (("--color", "always", "--format", "json"), {}, False),
+    ((), {"NO_COLOR": "1"}, False),
+    ((), {}, False),  # a StringIO is not a terminal
+])
+def test_colour(argv: tuple[str, ...], env: dict[str, str], escapes: bool) -> None:
+    _, out = _emit(sample.sample_report(), *argv, env=env)
+    assert ("\x1b[" in out) is escapes
+
+
+def test_write_baseline_then_use_it(tmp_path: Path) -> None:
+    path = tmp_path / "baseline.json"
+    code, _ = _emit(sample.sample_report(), "--write-baseline", str(path), "--quiet")
+    assert code == 0 and path.is_file()
+    code, out = _emit(sample.sample_report(), "--baseline", str(path))
+    assert code == 0 and "PASS" in out
+    report = sample.sample_report()
+    extra = dataclasses.replace(report.findings[0], finding=dataclasses.replace(
+        report.findings[0].finding, sensor="SW_POWER", refs=("E1",)))
+    code, out = _emit(dataclasses.replace(report, findings=(extra, *report.findings[1:])),
+                      "--baseline", str(path))
+    assert code == 1
+    assert "ground-gap-tight on SW_MODE (nets GND, TOUCH_MODE; refs E2)" in out
+
+
+def test_svg_option(tmp_path: Path) -> None:
+    _emit(sample.sample_report(with_board=True), "--svg", str(tmp_path / "b.svg"))
+    assert (tmp_path / "b.svg").read_text().startswith("<?xml")
+
+
+def test_mains_caution_is_added_once() -> None:
+    bare = sample.sample_report(cautions=())
+    assert with_cautions(bare).cautions == (MAINS_CAUTION,)
+    assert with_cautions(sample.sample_report()).cautions == sample.sample_report().cautions
+    battery = sample.sample_report(cautions=(), info=sample.sample_info(power="battery"))
+    assert with_cautions(battery).cautions == ()
+    _, out = _emit(bare)
+    assert "IEC 62368-1" in out and "IEC 60335-1" in out
+
+
+def test_against_a_revision(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.setenv("GIT_CONFIG_GLOBAL", "/dev/null")
+    repo = new_repo(tmp_path / "repo")
+    commit_file(repo, "hw/panel.kicad_pcb", "ratio 0.0614\n")
+    commit_file(repo, "hw/panel.kicad_pcb", "ratio 0.03\n")
+    board = repo / "hw/panel.kicad_pcb"
+
+    def fake_audit(path: str) -> Report:
+        """Stands in for the pipeline: the file's text sets SW_POWER's ratio."""
+        ratio = float(Path(path).read_text().split()[1])
+        report = sample.sample_report(info=sample.sample_info(board_path=path))
+        first = report.sensors[0]
+        assert first.metrics is not None
+        metrics = dataclasses.replace(first.metrics, delta_ratio=ratio)
+        return dataclasses.replace(report, sensors=(dataclasses.replace(first, metrics=metrics),
+                                                    *report.sensors[1:]))
+
+    out = io.StringIO()
+    current = fake_audit(str(board))
+    code = emit(dataclasses.replace(current, findings=()), _args("--against", "HEAD~1"),
+                audit=fake_audit, stdout=out, env={})
+    text = out.getvalue()
+    assert code == 1  # 0.0614 -> 0.03 loses 51 % of the ratio (> 20 %)
+    assert "HEAD~1:hw/panel.kicad_pcb" in text
+    assert "lost 51.1 % (> 20 %)" in text  # (0.0614 - 0.03) / 0.0614 = 0.5114
+    assert "padaudit-rev-" not in text  # no temporary path leaks into the output
