@@ -10,7 +10,7 @@ options give the same report.
 from __future__ import annotations
 
 import argparse
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass, replace
 from pathlib import Path
 
@@ -40,6 +40,9 @@ class AuditOptions:
     touch_side: str | None = None
     fail_on: str | None = None
     solve: bool = True  # False: layout rules only, every sensor "unsolved"
+    precise: bool = False  # True: 3-D solve of the real copper shapes
+    #: Called as ``progress(sensor_name, done, total)`` after each solve.
+    progress: Callable[[str, int, int], None] | None = None
 
 
 def options_from_args(args: argparse.Namespace) -> AuditOptions:
@@ -48,7 +51,8 @@ def options_from_args(args: argparse.Namespace) -> AuditOptions:
         config_path=getattr(args, "config", None), profile=getattr(args, "profile", None),
         overlay=getattr(args, "overlay", None), power=getattr(args, "power", None),
         touch_side=getattr(args, "touch_side", None), fail_on=getattr(args, "fail_on", None),
-        solve=not getattr(args, "no_solve", False))
+        solve=not getattr(args, "no_solve", False),
+        precise=bool(getattr(args, "precise", False)))
 
 
 @dataclass(frozen=True)
@@ -90,17 +94,15 @@ def measuring_selection(setup: AuditSetup) -> SensorSelection:
                                     sel.floating_radius_mm)))
 
 
-def solve_sensors(board: Board, sensors: tuple[Sensor, ...],
-                  settings: Config) -> dict[str, PadMetrics]:
-    """Field metrics per sensor name.
+def solve_sensors(board: Board, sensors: tuple[Sensor, ...], setup: AuditSetup,
+                  options: AuditOptions) -> dict[str, PadMetrics]:
+    """Field metrics per sensor name, from the quick (or, with ``precise``,
+    the 3-D) solve; sensors the solver cannot map get no entry and are
+    reported ``unsolved`` (no number is made up)."""
+    from auditor.pipeline_field import solve_sensors as field_solve
 
-    Not wired to the solver yet: returns ``{}`` so every sensor is reported
-    ``unsolved`` (no number is made up). The solver side is
-    :func:`auditor.pipeline_field.solve_sensors` (same first three
-    arguments, plus ``thresholds``); the metric rules and verdicts already
-    use whatever this returns.
-    """
-    return {}
+    return field_solve(board, sensors, setup.config, precise=options.precise,
+                       progress=options.progress, thresholds=setup.thresholds)
 
 
 def sense_nets(board: Board, sensors: tuple[Sensor, ...]) -> tuple[str, ...]:
@@ -148,7 +150,7 @@ def run_audit(board_path: str | Path, options: AuditOptions | None = None) -> Re
     selection = measuring_selection(setup)
     found, _rejects = find_sensors(board, selection)
     sensors = tuple(sorted(measure(board, found, selection), key=lambda s: s.name))
-    metrics = solve_sensors(board, sensors, setup.config) if opts.solve else {}
+    metrics = solve_sensors(board, sensors, setup, opts) if opts.solve else {}
     return build_report(board, sensors, metrics, setup)
 
 

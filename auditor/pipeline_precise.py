@@ -22,6 +22,7 @@ from dataclasses import dataclass
 import numpy as np
 import shapely
 from shapely.geometry import Point, box
+from shapely.ops import polylabel
 
 from auditor.config import Config
 from auditor.field.api import PadSetup, PadSolve, solve_pad
@@ -30,7 +31,8 @@ from auditor.field.pad_model import check_setup, ground_outer_mm, reduced_networ
 from auditor.field.precise import Conductor, LayeredMedium, solve_capacitance
 from auditor.field.traces import traces_pf
 from auditor.model.board import Board
-from auditor.pipeline_field import FieldInput, overlay_with_mask, touch_mask
+from auditor.pipeline_field import FieldInput
+from auditor.pipeline_stack import overlay_with_mask, touch_mask
 from auditor.report.model import PadMetrics
 from auditor.sensors.model import Sensor
 
@@ -144,10 +146,27 @@ def merged_ground(matrix: CapacitanceMatrix, prefix: str = GROUND + "@") -> Capa
     return CapacitanceMatrix.from_array(tuple(names[i] for i in rest) + (GROUND,), values)
 
 
-def finger_disk(sensor: Sensor, diameter_mm: float) -> shapely.Geometry:
-    """The finger contact disk over the electrode's centroid."""
+def touch_point(sensor: Sensor) -> Point:
+    """Where the finger goes: the centroid, or for a ring or loop (centroid
+    outside the copper) the copper's pole of inaccessibility."""
     centre = sensor.geometry.centroid
-    return Point(centre.x, centre.y).buffer(0.5 * diameter_mm, quad_segs=32)
+    if sensor.geometry.contains(centre):
+        return Point(centre.x, centre.y)
+    parts = [g for g in shapely.get_parts(sensor.geometry) if g.geom_type == "Polygon"]
+    largest = max(parts, key=lambda g: g.area)
+    return Point(polylabel(largest, tolerance=0.05).coords[0])
+
+
+def finger_disk(sensor: Sensor, diameter_mm: float) -> shapely.Geometry:
+    """The finger contact disk at :func:`touch_point`."""
+    return touch_point(sensor).buffer(0.5 * diameter_mm, quad_segs=32)
+
+
+def cell_for(sensor: Sensor) -> float:
+    """Cell side: :data:`CELL_MM`, down to 0.25 mm for a tighter coplanar gap."""
+    surround = sensor.surroundings
+    gap = (surround.min_gap_mm if surround else None) or CELL_MM
+    return max(0.25, min(CELL_MM, gap))
 
 
 def pad_conductors(sensor: Sensor, board: Board, stack: PreciseStack,
@@ -177,9 +196,13 @@ def _solve_pair(conductors: list[Conductor], medium: LayeredMedium, finger: Cond
 
 def metrics_from_precise(sensor: Sensor, board: Board, config: Config, mapped: FieldInput,
                          others: tuple[Sensor, ...] = (),
-                         cell_mm: float = CELL_MM) -> PadMetrics:
-    """One electrode's metrics from the 3-D solve, the quick estimate in the notes."""
+                         cell_mm: float | None = None) -> PadMetrics:
+    """One electrode's metrics from the 3-D solve, the quick estimate in the notes.
+
+    ``cell_mm`` defaults to :func:`cell_for` (0.5 mm, finer for tight gaps).
+    """
     setup = mapped.setup
+    cell_mm = cell_mm or cell_for(sensor)
     stack = stack_for(board, config)
     conductors = pad_conductors(sensor, board, stack, others)
     finger = None
@@ -197,9 +220,22 @@ def metrics_from_precise(sensor: Sensor, board: Board, config: Config, mapped: F
     notes = (f"precise: real copper, {cell_mm:g} mm cells, window pad + "
              f"{WINDOW_MARGIN_MM:g} mm; other electrodes held at ground",
              _versus("Cp pad", cp_pad, quick.cp_pad_pf),
-             _versus("ΔC", delta, quick.delta_c_pf), *stack.notes, *mapped.notes,
-             *trace_notes)
+             _versus("ΔC", delta, quick.delta_c_pf), *_cell_notes(sensor, cell_mm),
+             *stack.notes, *mapped.notes, *trace_notes)
     return PadMetrics(cp_pad, cp_trace, total, delta, delta / total, "precise", notes)
+
+
+def _cell_notes(sensor: Sensor, cell_mm: float) -> tuple[str, ...]:
+    notes = []
+    gap = sensor.surroundings.min_gap_mm if sensor.surroundings else None
+    if gap is not None and gap < cell_mm:
+        notes.append(f"gap {gap:.2f} mm narrower than the {cell_mm:g} mm cells: the precise "
+                     "Cp is underestimated there")
+    if not sensor.geometry.contains(sensor.geometry.centroid):
+        point = touch_point(sensor)
+        notes.append(f"finger placed on the copper at ({point.x:.1f}, {point.y:.1f}) mm, "
+                     "the centroid lies outside it")
+    return tuple(notes)
 
 
 def _versus(label: str, precise: float, quick: float) -> str:

@@ -7,7 +7,9 @@ a crashed rule, 2 bad input or usage, 3 internal error.
 from __future__ import annotations
 
 import argparse
+import dataclasses
 
+from auditor.cli.progress import ProgressCallback
 from auditor.cli.report_options import add_report_options, emit
 from auditor.config import POWER_CHOICES, TOUCH_SIDES
 from auditor.pipeline import options_from_args, run_audit
@@ -38,10 +40,18 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
     parser.add_argument("--no-solve", action="store_true",
                         help="skip the field solve: layout rules only, every electrode "
                              "reported unsolved")
+    parser.add_argument("--precise", action="store_true",
+                        help="solve the real copper shapes in 3-D (slower); adds pad-to-pad "
+                             "coupling and slider response")
     add_report_options(parser)
 
 
 def run(args: argparse.Namespace) -> int:
     """Audit the board and report; returns the exit code."""
-    report = run_audit(args.board, options_from_args(args))
+    progress = ProgressCallback(quiet=args.quiet)
+    try:
+        options = dataclasses.replace(options_from_args(args), progress=progress)
+        report = run_audit(args.board, options)
+    finally:
+        progress.close()
     return emit(report, args)

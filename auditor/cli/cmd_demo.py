@@ -9,9 +9,11 @@ file exits 1, as a merge gate should.
 from __future__ import annotations
 
 import argparse
+import dataclasses
 import sys
 
 from auditor.cli.main import EXIT_CLEAN, EXIT_FINDINGS
+from auditor.cli.progress import ProgressCallback
 from auditor.cli.report_options import add_report_options, emit
 from auditor.demo import demo_board_path, demo_config_path
 from auditor.pipeline import options_from_args, run_audit
@@ -28,6 +30,8 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
     parser.add_argument("--path", action="store_true",
                         help="print where the demo board is installed and stop "
                              "(copy it to try the other commands)")
+    parser.add_argument("--precise", action="store_true",
+                        help="solve the real copper shapes in 3-D (slower)")
     add_report_options(parser)
 
 
@@ -40,7 +44,12 @@ def run(args: argparse.Namespace) -> int:
     # The demo's configuration sits beside the board; name it explicitly so a
     # padaudit.toml in the user's working folder cannot change the demo.
     args.config = str(demo_config_path())
-    report = run_audit(str(board), options_from_args(args))
+    progress = ProgressCallback(quiet=args.quiet)
+    try:
+        options = dataclasses.replace(options_from_args(args), progress=progress)
+        report = run_audit(str(board), options)
+    finally:
+        progress.close()
     code = emit(report, args)
     if code == EXIT_FINDINGS:
         if args.format == "text" and not args.output:

@@ -68,3 +68,27 @@ def progress_for(total: int, quiet: bool = False, stream: TextIO | None = None,
     target = stream if stream is not None else sys.stderr
     environment = os.environ if env is None else env
     return SolveProgress(total, enabled=use_progress(target, environment, quiet), stream=target)
+
+
+class ProgressCallback:
+    """The pipeline's ``progress(label, done, total)`` callback, drawing a
+    :class:`SolveProgress` that is created on the first solve (only then is
+    the number of electrodes known) and closed after the last."""
+
+    def __init__(self, quiet: bool = False, stream: TextIO | None = None) -> None:
+        self._quiet = quiet
+        self._stream = stream
+        self._bar: SolveProgress | None = None
+
+    def __call__(self, label: str, done: int, total: int) -> None:
+        if self._bar is None:
+            self._bar = progress_for(total, self._quiet, self._stream).__enter__()
+        self._bar.step(label)
+        if done >= total:
+            self.close()
+
+    def close(self) -> None:
+        """Stop drawing (safe to call twice)."""
+        if self._bar is not None:
+            self._bar.__exit__(None, None, None)
+            self._bar = None

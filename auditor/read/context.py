@@ -46,6 +46,7 @@ class ReadContext:
     _skipped: dict[tuple[str, str], list[int]] = field(default_factory=dict)
     _net_seen: set[str] = field(default_factory=set)
     shape_cache: dict[object, object] = field(default_factory=dict)
+    _names: dict[str, str] = field(default_factory=dict)
     _copper_set: frozenset[str] = frozenset({"F.Cu", "B.Cu"})
 
     # -- errors and warnings -------------------------------------------------
@@ -119,14 +120,14 @@ class ReadContext:
         if node is None or len(node) < 2:
             return ""
         if len(node) >= 3 and isinstance(node[2], str):
-            return node[2]
+            return self.canonical(node[2])
         token = node[1]
         if not isinstance(token, str):
             return ""
         if self.version >= NETS_BY_NAME_FROM or not self.net_codes:
             if token.lstrip("-").isdigit() and token in self.net_codes:
                 return self.net_codes[token]
-            return "" if token == "0" and not self.net_codes else token
+            return "" if token == "0" and not self.net_codes else self.canonical(token)
         name = self.net_codes.get(token)
         if name is None:
             self.warn("unknown-net-code", f"net code {token} is not in the net table", node)
@@ -163,6 +164,11 @@ class ReadContext:
         if name.startswith("F&B."):
             return [f"F.{name[4:]}", f"B.{name[4:]}"]
         return [name]
+
+    def canonical(self, text: str) -> str:
+        """One shared string object per distinct layer or net name (every
+        token is a fresh string; thousands of items repeat the same names)."""
+        return self._names.setdefault(text, text)
 
     def set_copper(self, layers: tuple[str, ...]) -> None:
         """Fix the copper stack (front first)."""

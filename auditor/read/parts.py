@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from array import array
 from dataclasses import dataclass, field
 
 from auditor.model import geometry as geo
@@ -23,8 +24,9 @@ class BoardParts:
 
     footprints: list[Footprint] = field(default_factory=list)
     tracks: list[Track | None] = field(default_factory=list)  # None until finished
-    pending_segments: list[tuple[int, float, float, float, float, float, str, str]] = \
-        field(default_factory=list)
+    #: straight tracks waiting for their geometry: 5 numbers each, and names
+    segment_numbers: array[float] = field(default_factory=lambda: array("d"))
+    segment_names: list[tuple[str, str]] = field(default_factory=list)
     vias: list[Via] = field(default_factory=list)
     zones: list[Zone] = field(default_factory=list)
     graphics: list[CopperShape] = field(default_factory=list)

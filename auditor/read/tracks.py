@@ -8,6 +8,7 @@ stack between their two listed end layers.
 from __future__ import annotations
 
 import math
+from array import array
 
 import numpy as np
 
@@ -23,7 +24,7 @@ def _track_layer(node: Node, ctx: ReadContext) -> str | None:
     # 9+ tracks may say (layers "F.Cu" "F.Mask"): the copper one counts.
     for layer in layers_of(node, ctx):
         if ctx.is_copper(layer):
-            return layer
+            return ctx.canonical(layer)
     return None
 
 
@@ -42,9 +43,10 @@ def read_segment(node: Node, ctx: ReadContext, parts: BoardParts) -> None:
         return
     (x0, y0), (x1, y1) = _ends(node, ctx)
     width = ctx.value_of(node, "width")
-    # geometry for all straight tracks is built at once by finish_segments
-    parts.pending_segments.append((len(parts.tracks), x0, y0, x1, y1, width, layer,
-                                   ctx.net_of(find(node, "net"))))
+    # geometry for all straight tracks is built at once by finish_segments;
+    # until then they wait as compact numbers (peak memory)
+    parts.segment_numbers.extend((x0, y0, x1, y1, width))
+    parts.segment_names.append((layer, ctx.canonical(ctx.net_of(find(node, "net")))))
     parts.tracks.append(None)
 
 
@@ -54,21 +56,24 @@ _BATCH = 1024
 
 def finish_segments(parts: BoardParts) -> None:
     """Give every straight track its copper (vectorised, see geometry.stadiums)."""
-    pending = parts.pending_segments
-    if not pending:
+    if not parts.segment_names:
         return
-    numbers = np.array([p[1:6] for p in pending], dtype=float)
+    numbers = np.frombuffer(parts.segment_numbers, dtype=float).reshape(-1, 5)
     wide = numbers[:, 4] > 0
-    shapes = np.empty(len(pending), dtype=object)
+    shapes = np.empty(len(numbers), dtype=object)
     rows = np.flatnonzero(wide)
     for first in range(0, len(rows), _BATCH):  # batches bound the temporary arrays
         batch = rows[first:first + _BATCH]
         shapes[batch] = geo.stadiums(numbers[batch, :4], numbers[batch, 4])
-    for k, (index, x0, y0, x1, y1, width, layer, net) in enumerate(pending):
+    slots = (i for i, track in enumerate(parts.tracks) if track is None)
+    for k, (index, (layer, net)) in enumerate(zip(slots, parts.segment_names, strict=False)):
+        x0, y0, x1, y1, width = (float(v) for v in numbers[k])
         geometry = shapes[k] if wide[k] else geo.stroke(np.array([(x0, y0), (x1, y1)]), 0.0)
         parts.tracks[index] = Track(Point(x0, y0), Point(x1, y1), width, layer, net,
                                     math.hypot(x1 - x0, y1 - y0), geometry)
-    pending.clear()
+    parts.segment_names.clear()
+    del numbers
+    parts.segment_numbers = array("d")
 
 
 def read_arc(node: Node, ctx: ReadContext, parts: BoardParts) -> None:

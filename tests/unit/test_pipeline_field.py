@@ -55,9 +55,12 @@ def touch1(boards, name):  # type: ignore[no-untyped-def]
 def test_setup_matches_hand_computation(boards) -> None:  # type: ignore[no-untyped-def]
     """Hand computation from the fixture's design values and stackup."""
     board, sensor, config = touch1(boards, "base")
-    setup = pad_setup_for(sensor, board, config).setup
-    # a 10 mm circle as KiCad's 64-gon: (n/2) r^2 sin(2 pi/n) = 78.41 -> 3 figures
-    assert setup.pad_area_mm2 == pytest.approx(78.4)
+    mapped = pad_setup_for(sensor, board, config)
+    setup = mapped.setup
+    # a 10 mm circle as KiCad's 64-gon: (n/2) r^2 sin(2 pi/n) = 78.41 mm^2, equal-area
+    # radius 4.9958 mm: within 20 µm of the 10 mm finger's edge, so moved onto it
+    assert setup.pad_area_mm2 == pytest.approx(math.pi * 25)
+    assert any("onto the finger's edge" in note for note in mapped.notes)
     assert setup.gap_mm == pytest.approx(1.0)
     # 1.6 mm board = 2 x 0.01 mask + 2 x 0.035 copper + 1.51 FR-4 (the writer's stackup)
     assert setup.plane_depth_mm == pytest.approx(1.51)
@@ -120,7 +123,7 @@ def test_mutual_pair_maps_to_disk_and_ring(boards, monkeypatch) -> None:  # type
     d 10 mm, gap 6 mm, ring of the same 78.41 mm^2 from r = 11 mm:
     width sqrt(11^2 + 78.41/pi) - 11 = 1.081 mm. The receiver gets Cm, the
     transmitter no entry."""
-    import auditor.pipeline_field as pf
+    import auditor.pipeline_mutual as pf
     from auditor.field.api import MutualSolve
     from auditor.field.matrix import CapacitanceMatrix
 
