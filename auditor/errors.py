@@ -18,8 +18,8 @@ class UsageError(PadauditError):
     """A command-line option or configuration value is not acceptable."""
 
 
-class ConfigError(PadauditError):
-    """A configuration or profile file is malformed.
+class LocatedError(PadauditError):
+    """An error in one input file, at a line and column where known.
 
     Parameters
     ----------
@@ -28,7 +28,7 @@ class ConfigError(PadauditError):
     message:
         What is wrong, in one line.
     line, column:
-        1-based position where known.
+        1-based position of the offending token where known.
     """
 
     def __init__(self, path: str | Path, message: str, line: int | None = None,
@@ -43,34 +43,18 @@ class ConfigError(PadauditError):
         return _located(self.path, self.line, self.column, self.message)
 
 
-class BoardFileError(PadauditError):
-    """A board file cannot be read.
+class ConfigError(LocatedError):
+    """A configuration, profile or project file is malformed."""
 
-    Parameters
-    ----------
-    path:
-        The board file.
-    message:
-        What is wrong, in one line.
-    line, column:
-        1-based position of the offending token where known.
+
+class BoardFileError(LocatedError):
+    """A board file cannot be read.
 
     Examples
     --------
     >>> str(BoardFileError("a.kicad_pcb", "unbalanced parenthesis", 3, 7))
     'a.kicad_pcb:3:7: unbalanced parenthesis'
     """
-
-    def __init__(self, path: str | Path, message: str, line: int | None = None,
-                 column: int | None = None) -> None:
-        self.path = str(path)
-        self.message = message
-        self.line = line
-        self.column = column
-        super().__init__(self.__str__())
-
-    def __str__(self) -> str:
-        return _located(self.path, self.line, self.column, self.message)
 
 
 def _located(path: str, line: int | None, column: int | None, message: str) -> str:
