@@ -17,6 +17,7 @@ from pathlib import Path
 from auditor import __version__
 from auditor.config import Config, discover_config, with_overrides
 from auditor.decide import Policy, decide, sensitivity_ranks, sensor_verdict
+from auditor.field.precise.results import PreciseExtras
 from auditor.model.board import Board
 from auditor.model.items import ReadWarning
 from auditor.read import read_board
@@ -151,18 +152,28 @@ def run_audit(board_path: str | Path, options: AuditOptions | None = None) -> Re
     found, _rejects = find_sensors(board, selection)
     sensors = tuple(sorted(measure(board, found, selection), key=lambda s: s.name))
     metrics = solve_sensors(board, sensors, setup, opts) if opts.solve else {}
-    return build_report(board, sensors, metrics, setup)
+    extras = _precise_extras(board, sensors, setup) if opts.solve and opts.precise else None
+    return build_report(board, sensors, metrics, setup, extras)
+
+
+def _precise_extras(board: Board, sensors: tuple[Sensor, ...],
+                    setup: AuditSetup) -> PreciseExtras:
+    """Pad-to-pad coupling and slider/wheel response (``--precise`` only:
+    each costs several 3-D solves)."""
+    from auditor.pipeline_extras import precise_extras
+
+    return precise_extras(board, sensors, setup.config)
 
 
 def build_report(board: Board, sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetrics],
-                 setup: AuditSetup) -> Report:
+                 setup: AuditSetup, extras: PreciseExtras | None = None) -> Report:
     """Run the rules, decide, and assemble the report (no file access)."""
     config = setup.config
     specs = all_rules()
     policy = Policy(specs, setup.profile.levels, config.severity, config.waivers)
     ctx = RuleContext(sensors, rule_settings(config, sense_nets(board, sensors)),
                       board.copper_layers, board.warnings,
-                      metrics, setup.thresholds)
+                      metrics, setup.thresholds, precise=extras)
     ran = run_rules(ctx, policy.active_rule_ids())
     decision = decide(ran.findings, policy)
     active = set(policy.active_rule_ids())
@@ -181,6 +192,7 @@ def build_report(board: Board, sensors: tuple[Sensor, ...], metrics: Mapping[str
         rule_errors=tuple(sorted(ran.errors)),
         cautions=_cautions(config.power),
         board=board,
+        precise=extras,
     )
 
 

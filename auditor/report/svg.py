@@ -86,11 +86,28 @@ def _outline(report: Report, stroke: float) -> list[str]:
     return ['<g id="outline">', *(g.svg(stroke, "#222222", 1.0) for g in lines), "</g>"]
 
 
+def _scale_group(r: SensorResult) -> str:
+    """Proximity electrodes sense a hand at a distance; scaling buttons
+    against them would paint every button the same dark colour."""
+    return "proximity" if r.sensor.kind == "proximity" else "touch"
+
+
+def best_ratios(report: Report) -> dict[str, float]:
+    """The best ΔC/Cp per colour-scale group (``touch``, ``proximity``)."""
+    best: dict[str, float] = {}
+    for r in report.sensors:
+        if r.metrics:
+            group = _scale_group(r)
+            best[group] = max(best.get(group, 0.0), r.metrics.delta_ratio)
+    return best
+
+
 def _electrodes(report: Report, thin: float, font: float) -> list[str]:
-    best = max((r.metrics.delta_ratio for r in report.sensors if r.metrics), default=0.0)
+    bests = best_ratios(report)
     shapes, gaps, labels = ['<g id="electrodes">'], ['<g id="ground-gaps">'], ['<g id="labels">']
     for r in report.sensors:
         geometry: BaseGeometry = r.sensor.geometry
+        best = bests.get(_scale_group(r), 0.0)
         fraction = r.metrics.delta_ratio / best if r.metrics and best > 0 else 0.0
         colour = sensitivity_colour(fraction) if r.metrics else _UNSOLVED
         shapes.append(geometry.svg(thin, colour, 0.9))
@@ -142,14 +159,18 @@ def _legend(report: Report, x0: float, y0: float, font: float) -> list[str]:
            _text(x0, y0 + 2 * line, font * 0.8, f"profile {report.info.profile} · "
                  f"power {report.info.power}", fill="#555555")]
     y = y0 + 3.5 * line
-    out.append(_text(x0, y, font * 0.9, "electrode ΔC/Cp, share of the best pad"))
+    bests = best_ratios(report)
+    title = "electrode ΔC/Cp, share of the best touch pad"
+    if "proximity" in bests and "touch" in bests:
+        title += " (proximity on its own scale)"
+    out.append(_text(x0, y, font * 0.9, title))
     steps = 10
     width = font * 14 / steps
     for i in range(steps):
         out.append(f'<rect x="{_n(x0 + i * width)}" y="{_n(y + 0.4 * line)}" '
                    f'width="{_n(width)}" height="{_n(font)}" '
                    f'fill="{sensitivity_colour(i / (steps - 1))}"/>')
-    best = max((r.metrics.delta_ratio for r in report.sensors if r.metrics), default=0.0)
+    best = bests.get("touch", bests.get("proximity", 0.0))
     out.append(_text(x0, y + 1.9 * line, font * 0.75, "0"))
     top = f"{best * 100:.2f} %" if best > 0 else "no pad solved"
     out.append(_text(x0 + steps * width, y + 1.9 * line, font * 0.75, top, text_anchor="end"))

@@ -127,3 +127,44 @@ def test_precise_rules_quiet_on_a_regular_slider_and_without_data(slider_extras)
         ctx = RuleContext(sensors, thresholds=thresholds, precise=precise)
         ran = run_rules(ctx, PRECISE_RULES)
         assert not ran.errors and not ran.findings
+
+
+def wedge(index: int, count: int, inner_mm: float, outer_mm: float, gap_deg: float):  # type: ignore[no-untyped-def]
+    """One wheel segment: an annular sector centred at (30, 20) mm."""
+    from shapely.geometry import Polygon
+
+    start = 360.0 * index / count + 0.5 * gap_deg
+    end = 360.0 * (index + 1) / count - 0.5 * gap_deg
+    angles = [math.radians(start + (end - start) * k / 16) for k in range(17)]
+    outer = [(30 + outer_mm * math.cos(a), 20 + outer_mm * math.sin(a)) for a in angles]
+    inner = [(30 + inner_mm * math.cos(a), 20 + inner_mm * math.sin(a)) for a in angles[::-1]]
+    return Polygon(outer + inner)
+
+
+def test_wheel_scan_wraps_and_is_monotonic(tmp_path: Path) -> None:
+    """Six equal wedges (r 6-14 mm, 8-degree gaps) on a board with no
+    ground: the closed scan wraps (positions cover one turn), the response is
+    continuous and the estimate never steps back (symmetry: equal wedges give
+    the same response shape at every segment); each wedge peaks within a
+    step of its centre."""
+    from dataclasses import replace
+
+    from auditor.sensors.model import Sensor
+
+    board, _sensors, config = measured(tmp_path, "bare", Design(buttons=(), ground_pour=False))
+    template = Sensor("W0", "wheel", ("W0",), (), "F.Cu", 0.0, 30.0, 20.0, "test",
+                      wedge(0, 6, 6.0, 14.0, 8.0), group="WHEEL")
+    wheel = tuple(replace(template, name=f"W{i}", nets=(f"W{i}",), index=i,
+                          geometry=wedge(i, 6, 6.0, 14.0, 8.0),
+                          area_mm2=wedge(i, 6, 6.0, 14.0, 8.0).area) for i in range(6))
+    extras = precise_extras(board, wheel, config, scan_cell_mm=1.0)
+    (scan,) = extras.scans
+    assert scan.kind == "wheel" and scan.segment_names == tuple(f"W{i}" for i in range(6))
+    assert not scan.dead_zones_mm and scan.monotonic
+    turn = 6 * scan.step_mm * 3
+    assert scan.positions_mm[-1] < turn and len(scan.positions_mm) == 18
+    assert 0 <= scan.linearity_mm < 0.5 * turn / 6
+    for index, centre in enumerate(scan.segment_centres_mm):
+        peak = max(range(len(scan.positions_mm)), key=lambda n: scan.delta_pf[n][index])
+        distance = abs(scan.positions_mm[peak] - centre)
+        assert min(distance, turn - distance) <= scan.step_mm + 1e-9
