@@ -215,6 +215,8 @@ def threshold_notes(text: str) -> dict[str, str]:
         if stripped.startswith("["):
             in_table = stripped.strip("[] ") == "thresholds"
             comments = []
+        elif stripped.startswith("# ---"):
+            comments = []  # a section heading, not part of the next key's note
         elif stripped.startswith("#"):
             comments.append(stripped.lstrip("#").strip())
         elif in_table and _KEY.match(raw):
