@@ -153,7 +153,15 @@ def run_audit(board_path: str | Path, options: AuditOptions | None = None) -> Re
     sensors = tuple(sorted(measure(board, found, selection), key=lambda s: s.name))
     metrics = solve_sensors(board, sensors, setup, opts) if opts.solve else {}
     extras = _precise_extras(board, sensors, setup) if opts.solve and opts.precise else None
-    return build_report(board, sensors, metrics, setup, extras)
+    unsolved = _unsolved(sensors, metrics, opts) if opts.solve else {}
+    return build_report(board, sensors, metrics, setup, extras, unsolved)
+
+
+def _unsolved(sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetrics],
+              options: AuditOptions) -> dict[str, str]:
+    from auditor.pipeline_field import unsolved_reasons
+
+    return unsolved_reasons(sensors, metrics, options.precise)
 
 
 def _precise_extras(board: Board, sensors: tuple[Sensor, ...],
@@ -166,14 +174,15 @@ def _precise_extras(board: Board, sensors: tuple[Sensor, ...],
 
 
 def build_report(board: Board, sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetrics],
-                 setup: AuditSetup, extras: PreciseExtras | None = None) -> Report:
+                 setup: AuditSetup, extras: PreciseExtras | None = None,
+                 unsolved: Mapping[str, str] | None = None) -> Report:
     """Run the rules, decide, and assemble the report (no file access)."""
     config = setup.config
     specs = all_rules()
     policy = Policy(specs, setup.profile.levels, config.severity, config.waivers)
     ctx = RuleContext(sensors, rule_settings(config, sense_nets(board, sensors)),
                       board.copper_layers, board.warnings,
-                      metrics, setup.thresholds, precise=extras)
+                      metrics, setup.thresholds, precise=extras, unsolved=unsolved or {})
     ran = run_rules(ctx, policy.active_rule_ids())
     decision = decide(ran.findings, policy)
     active = set(policy.active_rule_ids())

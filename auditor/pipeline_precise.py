@@ -222,7 +222,9 @@ def metrics_from_precise(sensor: Sensor, board: Board, config: Config, mapped: F
              _versus("Cp pad", cp_pad, quick.cp_pad_pf),
              _versus("ΔC", delta, quick.delta_c_pf), *_cell_notes(sensor, cell_mm),
              *stack.notes, *mapped.notes, *trace_notes)
-    return PadMetrics(cp_pad, cp_trace, total, delta, delta / total, "precise", notes)
+    return PadMetrics(cp_pad, cp_trace, total, delta, delta / total, "precise", notes,
+                      quick_cp_pad_pf=quick.cp_pad_pf, quick_cp_total_pf=quick.cp_total_pf,
+                      quick_delta_c_pf=quick.delta_c_pf)
 
 
 def _cell_notes(sensor: Sensor, cell_mm: float) -> tuple[str, ...]:

@@ -116,7 +116,8 @@ def bench_round_pad() -> None:
     fine = both(0.04)
     error = max(float(np.max(np.abs(q - f)) / np.max(np.abs(f))) for q, f in zip(quick, fine, strict=True))
     print(f"round pad, ring, plane, overlay, finger: both matrices {ms:.1f} ms "
-          f"(shared factorisation; {separate_ms:.1f} ms as two solves), "
+          f"(one mesh and assembly per level; {separate_ms:.1f} ms as two "
+          f"solve_axisym calls), "
           f"largest entry error {100 * error:.3f} % vs eta 0.04 run (goal 60 ms, 1 %)")
     from auditor.field.circuit import touch_network_pf
     from auditor.field.matrix import CapacitanceMatrix

@@ -2,6 +2,9 @@
 
 Lets a designer size a pad before layout: Cp, the change under a finger and
 the capacitance matrices, for one pad diameter or a sweep (``8:16:2``).
+``--precise`` also solves the same round pad, ring and plane with the 3-D
+moment method (:func:`auditor.pipeline_precise.estimate_precise`) and prints
+it beside the quick result with the difference.
 """
 
 from __future__ import annotations
@@ -22,6 +25,9 @@ MAINS_CAUTION = ("caution: touch electrodes on mains-referenced circuits need is
                  "for it; product safety standards (e.g. IEC 62368-1, IEC 60335-1), local "
                  "codes and licensed practice govern, not this estimate.")
 _MAX_SWEEP = 50
+#: Cells of ``--precise``: 0.25 mm keeps the round pad within about 0.5 % of
+#: the quick solve (tests/unit/test_pipeline_precise.py) at about 1.5 s a pad.
+_PRECISE_CELL_MM = 0.25
 _DIGITS = 6
 
 
@@ -69,6 +75,10 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
                    help="how the device ground reaches earth (default battery)")
     p.add_argument("--body-pf", default="150", metavar="PF",
                    help="body to earth capacitance (default 150, IEC 61000-4-2)")
+    p.add_argument("--precise", action="store_true",
+                   help="also solve the pad in 3-D (moment method) and show both results")
+    p.add_argument("--cell", default=None, metavar="MM",
+                   help="cell side of the --precise solve (default 0.25)")
     p.add_argument("--json", action="store_true", help="print JSON instead of text")
 
 
@@ -162,12 +172,40 @@ def _record(diameter_mm: float, solve: PadSolve) -> dict[str, Any]:
         "notes": list(solve.notes)}
 
 
+def _precise_solve(setup: PadSetup, cell_mm: float) -> PadSolve:
+    from auditor.pipeline_precise import estimate_precise  # heavy: only when asked
+
+    try:
+        return estimate_precise(setup, cell_mm=cell_mm)
+    except ValueError as exc:  # e.g. a plane depth between the board's layer interfaces
+        raise UsageError(f"--precise: {exc}") from None
+
+
+def _change_pct(precise: float, quick: float) -> float | None:
+    return round((precise / quick - 1.0) * 100.0, 4) + 0.0 if quick else None
+
+
+def _with_precise(record: dict[str, Any], solve: PadSolve) -> dict[str, Any]:
+    """The quick record with the precise one beside it and their difference."""
+    precise = _record(record["pad_diameter_mm"], solve)
+    del precise["pad_diameter_mm"]
+    precise["change_pct"] = {key: _change_pct(precise[key], record[key])
+                             for key in ("cp_pf", "cp_touched_pf", "delta_c_pf", "delta_ratio")}
+    return {**record, "method": "quick", "precise": precise}
+
+
 def run(args: argparse.Namespace) -> int:
     """Solve and print; exit 0."""
     diameters = _diameters(args.pad_diameter)
     overlay = _overlay(args.overlay)
     setups = [_setup(args, d, overlay) for d in diameters]
     records = [_record(d, solve_pad(s)) for d, s in zip(diameters, setups, strict=True)]
+    if args.cell is not None and not args.precise:
+        raise UsageError("--cell: sets the cells of the --precise solve; add --precise")
+    if args.precise:
+        cell_mm = _number("--cell", args.cell or str(_PRECISE_CELL_MM))
+        records = [_with_precise(rec, _precise_solve(s, cell_mm))
+                   for rec, s in zip(records, setups, strict=True)]
     cautions = [MAINS_CAUTION] if args.power == "mains" else []
     if args.json:
         payload: dict[str, Any] = (dict(records[0]) if len(records) == 1
@@ -196,7 +234,9 @@ def _text(records: list[dict[str, Any]], setup: PadSetup, overlay: _Overlay) -> 
              f"board    {setup.board_mm:g} mm, er {setup.board_layers[0].er:g}; "
              f"pad on the {setup.pad_side} side",
              f"finger   {finger}; power {setup.power}", ""]
-    if len(records) == 1:
+    if len(records) == 1 and "precise" in records[0]:
+        lines += _side_by_side(records[0])
+    elif len(records) == 1:
         rec = records[0]
         lines += [f"Cp (pad to device ground)  {rec['cp_pf']:.4f} pF",
                   f"with finger                {rec['cp_touched_pf']:.4f} pF",
@@ -206,14 +246,55 @@ def _text(records: list[dict[str, Any]], setup: PadSetup, overlay: _Overlay) -> 
         if rec["matrix_with_finger"] is not None:
             lines += _matrix_lines("field matrix, with finger", rec["matrix_with_finger"])
     else:
-        lines.append(f"{'pad mm':>7} {'Cp pF':>9} {'dC pF':>9} {'dC/Cp %':>8}")
-        lines += [f"{rec['pad_diameter_mm']:7g} {rec['cp_pf']:9.4f} {rec['delta_c_pf']:9.4f} "
-                  f"{100 * rec['delta_ratio']:8.2f}" for rec in records]
+        lines += _sweep_lines(records)
     notes = records[0]["notes"]
     if len(records) > 1:
         notes = ["pads as equal-area disks (area kept, perimeter not)",
                  *(n for n in notes if not n.startswith("pad as"))]
     lines += ["", "model:"] + [f"  - {note}" for note in notes]
+    if "precise" in records[0]:
+        lines += ["precise model:"] + [f"  - {note}" for note in records[0]["precise"]["notes"]]
+    return lines
+
+
+def _sweep_lines(records: list[dict[str, Any]]) -> list[str]:
+    head = f"{'pad mm':>7} {'Cp pF':>9} {'dC pF':>9} {'dC/Cp %':>8}"
+    if "precise" not in records[0]:
+        return [head] + [f"{rec['pad_diameter_mm']:7g} {rec['cp_pf']:9.4f} "
+                         f"{rec['delta_c_pf']:9.4f} {100 * rec['delta_ratio']:8.2f}"
+                         for rec in records]
+    lines = [head + f" {'3-D Cp':>9} {'change':>8} {'3-D dC':>9} {'change':>8}"]
+    for rec in records:
+        precise, change = rec["precise"], rec["precise"]["change_pct"]
+        lines.append(f"{rec['pad_diameter_mm']:7g} {rec['cp_pf']:9.4f} {rec['delta_c_pf']:9.4f} "
+                     f"{100 * rec['delta_ratio']:8.2f} {precise['cp_pf']:9.4f} "
+                     f"{_pct(change['cp_pf']):>8} {precise['delta_c_pf']:9.4f} "
+                     f"{_pct(change['delta_c_pf']):>8}")
+    return lines
+
+
+def _pct(value: float | None) -> str:
+    return "–" if value is None else f"{value:+.2f} %"
+
+
+def _side_by_side(rec: dict[str, Any]) -> list[str]:
+    """Quick and precise results of one pad, with the precise one's change."""
+    precise, change = rec["precise"], rec["precise"]["change_pct"]
+    lines = [f"{'':27}{'quick':>10}{'precise 3-D':>13}{'change':>10}"]
+    for label, key, unit, scale in (("Cp (pad to device ground)", "cp_pf", "pF", 1.0),
+                                    ("with finger", "cp_touched_pf", "pF", 1.0),
+                                    ("delta C", "delta_c_pf", "pF", 1.0),
+                                    ("delta C / Cp", "delta_ratio", "%", 100.0)):
+        lines.append(f"{label:27}{rec[key] * scale:7.4f} {unit:2}{precise[key] * scale:10.4f} "
+                     f"{unit:2}{_pct(change[key]):>10}")
+    lines.append("")
+    lines += _matrix_lines("field matrix, no finger (pF, reference: earth), quick", rec["matrix"])
+    lines += _matrix_lines("field matrix, no finger, precise 3-D", precise["matrix"])
+    if rec["matrix_with_finger"] is not None:
+        lines += _matrix_lines("field matrix, with finger, quick", rec["matrix_with_finger"])
+    if precise["matrix_with_finger"] is not None:
+        lines += _matrix_lines("field matrix, with finger, precise 3-D",
+                               precise["matrix_with_finger"])
     return lines
 
 

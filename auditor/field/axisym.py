@@ -223,7 +223,7 @@ def _single_solve(model: AxisymModel, eta: float,
     mesh = build_mesh(model, eta, far_factor)
     eps = _cell_permittivity(model, mesh)
     stiffness = fem.assemble(mesh, eps, _far_field_terms(model, mesh, eps))
-    values = fem.capacitance_matrix(stiffness, _conductor_nodes(model, mesh))
+    values = fem.capacitance_matrix(stiffness, _conductor_nodes(model, mesh), mesh.shape)
     return values, mesh.node_count
 
 
@@ -232,9 +232,11 @@ def solve_axisym_pair(model: AxisymModel, extra: Sheet, eta: float = DEFAULT_ETA
                       extrapolate: bool = True) -> tuple[AxisymResult, AxisymResult]:
     """The model's matrix without and with one extra conductor sheet.
 
-    Both on the same mesh (the extra sheet shapes it in both cases) from one
-    factorisation per level; equal to two :func:`solve_axisym` calls with
-    ``mesh_hints=(extra,)`` on the first, to rounding.
+    Both on the same mesh (the extra sheet shapes it in both cases), one
+    assembly per level (:func:`auditor.field.fem.capacitance_pair` decides
+    whether the second solve reuses the first's factorisation); equal to two
+    :func:`solve_axisym` calls with ``mesh_hints=(extra,)`` on the first, to
+    rounding.
     """
     hinted = AxisymModel(model.sheets, model.layers, (*model.mesh_hints, extra))
     _validate(hinted)
@@ -260,6 +262,6 @@ def _pair_solve(model: AxisymModel, extra: Sheet, eta: float,
                                        extra.r_outer_mm if extra.r_outer_mm is not None
                                        else np.inf)
     base, with_extra = fem.capacitance_pair(stiffness, _conductor_nodes(model, mesh),
-                                            extra_nodes)
+                                            extra_nodes, mesh.shape)
     assert with_extra is not None
     return base, with_extra, mesh.node_count

@@ -62,10 +62,15 @@ def _spacing(x: NDArray[np.float64], points: NDArray[np.float64],
     """Target node spacing at each x: the minimum over all breakpoint rules."""
     d = np.abs(x[:, None] - points[None, :]) / scales[None, :]
     knee = _BETA ** (-_BETA / (_BETA - 1.0))
-    power = np.maximum(eta ** (_BETA - 1.0), _BETA * d ** ((_BETA - 1.0) / _BETA))
-    radical = np.where(d < knee, power, 1.0 + _GROWTH * (d - knee))
-    smooth = 1.0 + _GROWTH * d
-    rule = np.where(singular[None, :], radical, smooth) * eta * scales[None, :]
+    # Linear growth everywhere first (smooth rule, and the radical rule past
+    # its knee); the fractional power only where a sample is within the knee
+    # of a singular point, a small share of the pairs (same values, less work).
+    shift = np.where(singular, knee, 0.0)
+    relative = 1.0 + _GROWTH * (d - shift[None, :])
+    rows, cols = np.nonzero((d < knee) & singular[None, :])
+    relative[rows, cols] = np.maximum(eta ** (_BETA - 1.0),
+                                      _BETA * d[rows, cols] ** ((_BETA - 1.0) / _BETA))
+    rule = relative * eta * scales[None, :]
     nearest: NDArray[np.float64] = rule.min(axis=1)
     # Outside the modelled object the field is a smooth multipole: let the
     # spacing grow faster there (still in proportion to eta).

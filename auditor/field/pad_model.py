@@ -101,8 +101,8 @@ def field_matrices(model: AxisymModel, finger: Sheet | None
                    ) -> tuple[CapacitanceMatrix, CapacitanceMatrix | None]:
     """Baseline and touched matrices, cached per geometry (boards repeat pads).
 
-    With a finger both come from one mesh and one factorisation per level
-    (:func:`auditor.field.axisym.solve_axisym_pair`); the baseline is still a
+    With a finger both come from one mesh per level
+    (:func:`auditor.field.axisym.solve_axisym_pair`); the baseline is a
     solve without the finger conductor, never a sub-block of the touched one.
     """
     if finger is None:

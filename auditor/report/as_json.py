@@ -12,10 +12,13 @@ import json
 import math
 from collections.abc import Iterable
 from importlib import resources
-from typing import Any, TextIO
+from typing import TYPE_CHECKING, Any, TextIO
 
 from auditor.report.model import DecidedFinding, PadMetrics, Report, SensorResult
 from auditor.sensors.model import SensePath, Surroundings
+
+if TYPE_CHECKING:
+    from auditor.field.precise.results import CouplingTable, PreciseExtras, SegmentScan
 
 #: Bumped when a field is removed or changes meaning; additions keep it.
 SCHEMA_VERSION = 1
@@ -37,7 +40,54 @@ def _metrics(m: PadMetrics | None) -> dict[str, Any] | None:
         "cp_pad_pf": rounded(m.cp_pad_pf), "cp_trace_pf": rounded(m.cp_trace_pf),
         "cp_total_pf": rounded(m.cp_total_pf), "delta_c_pf": rounded(m.delta_c_pf),
         "delta_ratio": rounded(m.delta_ratio), "method": m.method, "notes": list(m.notes),
+        **_quick(m),
     }
+
+
+def _quick(m: PadMetrics) -> dict[str, Any]:
+    """The quick estimate beside a precise result (absent for quick metrics)."""
+    if m.quick_cp_total_pf is None and m.quick_delta_c_pf is None:
+        return {}
+    return {"quick": {"cp_pad_pf": rounded(m.quick_cp_pad_pf),
+                      "cp_total_pf": rounded(m.quick_cp_total_pf),
+                      "delta_c_pf": rounded(m.quick_delta_c_pf)}}
+
+
+def _series(values: Iterable[float]) -> list[float | None]:
+    return [rounded(v) for v in values]
+
+
+def _coupling(table: CouplingTable | None) -> dict[str, Any] | None:
+    if table is None:
+        return None
+    return {"names": list(table.names), "cell_mm": rounded(table.cell_mm),
+            "crosstalk_pf": [_series(row) for row in table.crosstalk_pf],
+            "fraction_of_cp": [_series(row) for row in table.fraction_of_cp]}
+
+
+def _scan(scan: SegmentScan) -> dict[str, Any]:
+    segments = [{"name": name, "centre_mm": rounded(centre),
+                 "delta_pf": _series(row[i] for row in scan.delta_pf)}
+                for i, (name, centre) in enumerate(zip(scan.segment_names,
+                                                       scan.segment_centres_mm, strict=True))]
+    return {
+        "group": scan.group, "kind": scan.kind, "segments": segments,
+        "positions_mm": _series(scan.positions_mm), "estimated_mm": _series(scan.estimated_mm),
+        "linearity_mm": rounded(scan.linearity_mm),
+        "dead_zones_mm": [_series(zone) for zone in scan.dead_zones_mm],
+        "reversals_mm": _series(scan.reversals_mm), "monotonic": scan.monotonic,
+        "step_mm": rounded(scan.step_mm), "cell_mm": rounded(scan.cell_mm),
+        "x_mm": rounded(scan.x_mm), "y_mm": rounded(scan.y_mm),
+    }
+
+
+def _precise(extras: PreciseExtras | None) -> dict[str, Any]:
+    """``{"precise": ...}`` for a ``--precise`` run, else nothing (key absent)."""
+    if extras is None:
+        return {}
+    return {"precise": {"coupling": _coupling(extras.coupling),
+                        "scans": [_scan(scan) for scan in extras.scans],
+                        "notes": list(extras.notes)}}
 
 
 def _path(p: SensePath | None) -> dict[str, Any] | None:
@@ -125,6 +175,7 @@ def to_document(report: Report) -> dict[str, Any]:
         "stale_baseline": list(report.stale_baseline),
         "rule_errors": [{"rule_id": rid, "error": err} for rid, err in report.rule_errors],
         "cautions": list(report.cautions),
+        **_precise(report.precise),
     }
 
 

@@ -7,6 +7,10 @@ from typing import TextIO
 
 from auditor.report.model import DecidedFinding, Report
 from auditor.report.text import ordered_sensors
+from auditor.report.text_precise import strongest_pairs
+
+#: Coupled pairs named in the summary line.
+TOP_PAIRS = 3
 
 #: Findings listed per section; a PR comment must stay well under the size
 #: limit of code-hosting services (GitHub: 65536 characters).
@@ -70,6 +74,37 @@ def _table(report: Report, order: str) -> list[str]:
     return lines
 
 
+def _precise(report: Report) -> list[str]:
+    """Coupling and slider/wheel linearity in a few lines (``--precise`` only)."""
+    extras = report.precise
+    if extras is None:
+        return []
+    out = ["", "#### Precise solve", ""]
+    solved = [r.metrics for r in report.sensors if r.metrics is not None]
+    changes = [(abs(d[1]), d[1], r.sensor.name) for r in report.sensors
+               if r.metrics and (d := r.metrics.quick_difference) is not None]
+    line = (f"{sum(1 for m in solved if m.method != 'quick')} of {len(solved)} solved "
+            "electrodes in 3-D")
+    if changes:
+        _, change, name = max(changes)
+        line += f"; largest ΔC change against the quick estimate {change * 100:+.1f} % ({cell(name)})"
+    out.append(line + ".")
+    pairs = strongest_pairs(extras)[:TOP_PAIRS]
+    if pairs:
+        named = ", ".join(f"`{cell(p.first)}`–`{cell(p.second)}` {p.crosstalk_pf:.3f} pF "
+                          f"({p.worst_fraction * 100:.1f} % of a Cp)" for p in pairs)
+        out += ["", f"Strongest coupling: {named}."]
+    if extras.scans:
+        out += ["", "| slider/wheel | linearity mm | dead zones | reversals |",
+                "|---|---:|---|---|"]
+        for scan in extras.scans:
+            zones = ", ".join(f"{a:.1f}–{b:.1f} mm" for a, b in scan.dead_zones_mm) or "none"
+            back = ", ".join(f"{p:.1f} mm" for p in scan.reversals_mm) or "none"
+            out.append(f"| {cell(scan.group)} ({scan.kind}) | {scan.linearity_mm:.2f} | "
+                       f"{zones} | {back} |")
+    return out
+
+
 def _capped(lines: list[str]) -> list[str]:
     """At most :data:`MAX_LISTED` lines: pull-request comments have a size limit."""
     if len(lines) <= MAX_LISTED:
@@ -90,6 +125,7 @@ def render_markdown(report: Report, stream: TextIO, *, order: str = "weakest") -
     out += [f"> **Caution:** {c}" for c in report.cautions]
     out += [""] if report.cautions else []
     out += _table(report, order) if report.sensors else ["No electrodes found."]
+    out += _precise(report)
     failing = [d for d in report.findings if id(d) in failing_ids]
     rest = [d for d in report.findings if id(d) not in failing_ids]
     if failing:

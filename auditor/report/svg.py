@@ -5,7 +5,9 @@ picture matches KiCad's view. Layers: the outline, every copper layer's
 copper in a faint colour, electrodes filled by sensitivity (ΔC/Cp relative to
 the board's most sensitive pad, on the viridis scale, whose stops are
 published with matplotlib), the measured ground gap as a dashed ring,
-numbered finding markers and a legend panel on the right. Shapes come from
+numbered finding markers and a legend panel on the right; with ``--precise``
+the slider and wheel response plots under the board
+(:mod:`auditor.report.svg_plot`). Shapes come from
 shapely's own ``.svg()`` output.
 """
 
@@ -25,6 +27,7 @@ from auditor.report.svg_marks import (
     marker_elements,
     spots,
 )
+from auditor.report.svg_plot import plots_height, scan_plots
 from auditor.rules.finding import Severity
 
 # viridis at 0, .25, .5, .75, 1 (matplotlib's published colormap, CC0).
@@ -160,10 +163,11 @@ def _legend(report: Report, x0: float, y0: float, font: float) -> list[str]:
                  f"power {report.info.power}", fill="#555555")]
     y = y0 + 3.5 * line
     bests = best_ratios(report)
-    title = "electrode ΔC/Cp, share of the best touch pad"
-    if "proximity" in bests and "touch" in bests:
-        title += " (proximity on its own scale)"
-    out.append(_text(x0, y, font * 0.9, title))
+    out.append(_text(x0, y, font * 0.9, "electrode ΔC/Cp, share of the best touch pad"))
+    if "proximity" in bests and "touch" in bests:  # one line would run off the picture
+        out.append(_text(x0, y + 0.75 * line, font * 0.75, "(proximity on its own scale)",
+                         fill="#555555"))
+        y += 0.75 * line
     steps = 10
     width = font * 14 / steps
     for i in range(steps):
@@ -203,13 +207,18 @@ def to_svg(report: Report) -> str:
     font, margin, thin = size / 45, size / 30, size / 3000
     legend_w = font * 24
     rows = 18 + min(len(spots(report.findings)), LEGEND_PLACES + 1)
-    height = max(y1 - y0 + 2 * margin, rows * font * 1.5 + 2 * margin)
+    scans = report.precise.scans if report.precise else ()
+    plots_h = plots_height(scans, x1 - x0, font)
+    plots_gap = margin if scans else 0.0
+    height = max(y1 - y0 + 2 * margin + 2 * plots_gap + plots_h,
+                 rows * font * 1.5 + 2 * margin)
     vx, vy, vw = x0 - margin, y0 - margin, x1 - x0 + 3 * margin + legend_w
     body = [f'<rect x="{_n(vx)}" y="{_n(vy)}" width="{_n(vw)}" height="{_n(height)}" '
             'fill="#ffffff"/>',
             *_copper(report, thin), *_outline(report, size / 800),
             *_electrodes(report, thin, font), *marker_elements(spots(report.findings), font),
-            *_legend(report, x1 + 2 * margin, y0, font)]
+            *_legend(report, x1 + 2 * margin, y0, font),
+            *scan_plots(scans, x0, y1 + margin + plots_gap, x1 - x0, font)]
     return ('<?xml version="1.0" encoding="UTF-8"?>\n'
             f'<svg xmlns="http://www.w3.org/2000/svg" viewBox="{_n(vx)} {_n(vy)} {_n(vw)} '
             f'{_n(height)}" width="{_n(vw * 10)}" height="{_n(height * 10)}" '

@@ -1,8 +1,9 @@
 """The terminal report, laid out with rich.
 
-Sections, top to bottom: header, cautions, electrode table, findings by
-severity, per-rule counts, what the reader skipped, stale waivers and
-baseline entries, crashed rules, and a one-line result. Without colour the
+Sections, top to bottom: header, cautions, electrode table, with
+``--precise`` the coupling and slider blocks (:mod:`auditor.report.text_precise`),
+findings by severity, per-rule counts, what the reader skipped, stale waivers
+and baseline entries, crashed rules, and a one-line result. Without colour the
 console is built with no colour system, so not one escape code is written.
 """
 
@@ -17,6 +18,7 @@ from rich.table import Table
 from rich.text import Text
 
 from auditor.report.model import DecidedFinding, Report, RuleInfo, SensorResult
+from auditor.report.text_precise import render_precise_sections
 from auditor.rules.finding import Severity
 
 ORDERS: tuple[str, ...] = ("weakest", "rank")
@@ -270,6 +272,7 @@ def render_text(report: Report, stream: TextIO, colour: bool, *, order: str = "w
     _header(console, report)
     _cautions(console, report)
     _sensor_table(console, report, order)
+    render_precise_sections(console, report, ordered_sensors(report.sensors, order))
     _findings(console, report)
     _rule_counts(console, report)
     _listing(console, "Skipped or guessed while reading the board", report.read_warnings)

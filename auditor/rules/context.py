@@ -107,6 +107,8 @@ class RuleContext:
     #: Precise-mode results (``auditor.field.precise.results.PreciseExtras``)
     #: or None; read by :mod:`auditor.rules.precise_rules` through protocols.
     precise: object | None = None
+    #: Electrodes the field step ran for but could not solve, with the reason.
+    unsolved: Mapping[str, str] = field(default_factory=dict)
 
     def limits_for(self, rule_id: str, names: tuple[str, ...]) -> Limits:
         """The declared thresholds of one rule (missing ones left out)."""

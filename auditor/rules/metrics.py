@@ -74,3 +74,19 @@ def ratio_low(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
         yield call.finding(
             f"ΔC/Cp is {100 * metrics.delta_ratio:.2f} %, below {100 * limit:.2f} %", sensor,
             (("delta_ratio", metrics.delta_ratio), ("min_ratio", limit)))
+
+
+@sensor_rule(
+    "electrode-unsolved",
+    title="Electrode not covered by the field solve",
+    fix="Run with --precise for loops, combs and other shapes far from a plate; otherwise "
+        "check the electrode's configuration (kind, nets) so the solver can model it.",
+    severity=Severity.WARNING,
+)
+def electrode_unsolved(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """The field step ran but has no Cp or ΔC for this electrode, so the
+    rules on the touch signal could not judge it; an unjudged electrode must
+    not let the board pass as if it had been checked."""
+    reason = call.board.unsolved.get(sensor.name)
+    if reason:
+        yield call.finding(f"no field result: {reason}", sensor)

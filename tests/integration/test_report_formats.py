@@ -49,6 +49,31 @@ def test_golden(fmt: str) -> None:
     _check(f"sample.{SUFFIX[fmt]}", out.getvalue())
 
 
+@pytest.mark.parametrize("fmt", ["text", "json", "markdown"])
+def test_golden_precise(fmt: str) -> None:
+    """The sample report with invented precise extras (coupling table, one
+    slider scan with a dead zone and a reversal, precise metrics beside the
+    quick estimate)."""
+    out = io.StringIO()
+    if fmt == "text":
+        render_text(sample.precise_report(), out, False, width=100)
+    else:
+        render(sample.precise_report(), fmt, out)
+    _check(f"precise.{SUFFIX[fmt]}", out.getvalue())
+
+
+def test_precise_json_is_valid_against_the_shipped_schema() -> None:
+    import jsonschema
+
+    from auditor.report.as_json import load_schema
+
+    doc = json.loads((GOLDEN / "precise.json").read_text())
+    jsonschema.Draft202012Validator(load_schema()).validate(doc)
+    assert "precise" not in json.loads((GOLDEN / "sample.json").read_text())
+    scan = doc["precise"]["scans"][0]
+    assert all(len(seg["delta_pf"]) == len(scan["positions_mm"]) for seg in scan["segments"])
+
+
 def test_golden_text_by_rank_clean() -> None:
     out = io.StringIO()
     render_text(sample.clean_report(), out, False, order="rank", width=100)

@@ -14,6 +14,7 @@ from shapely.geometry import LineString, Point, Polygon, box
 from shapely.ops import unary_union
 
 from auditor import __version__
+from auditor.field.precise.results import CouplingTable, PreciseExtras, SegmentScan
 from auditor.model.board import Board
 from auditor.model.items import Outline, Stackup, StackupLayer, Track, Zone, ZoneFill
 from auditor.model.items import Point as BoardPoint
@@ -199,3 +200,83 @@ def clean_report() -> Report:
     """Same board with no gate-relevant findings: only the baselined info."""
     findings = tuple(d for d in sample_findings() if not d.counts_for_gate)
     return sample_report(findings=findings, stale_waivers=(), read_warnings=())
+
+
+# --- precise mode (invented numbers, shapes only plausible) -----------------
+
+_COUPLED = ("PROX", "SLD_1", "SLD_2", "SLD_3", "SW_MODE", "SW_POWER")
+#: Upper triangle of the invented crosstalk in pF (row/column order of _COUPLED).
+_CROSSTALK_PF = {
+    ("PROX", "SLD_1"): 0.21, ("PROX", "SLD_2"): 0.18, ("PROX", "SLD_3"): 0.24,
+    ("PROX", "SW_MODE"): 0.09, ("PROX", "SW_POWER"): 0.12,
+    ("SLD_1", "SLD_2"): 0.46, ("SLD_1", "SLD_3"): 0.031, ("SLD_1", "SW_MODE"): 0.018,
+    ("SLD_1", "SW_POWER"): 0.052, ("SLD_2", "SLD_3"): 0.43, ("SLD_2", "SW_MODE"): 0.027,
+    ("SLD_2", "SW_POWER"): 0.011, ("SLD_3", "SW_MODE"): 0.004, ("SLD_3", "SW_POWER"): 0.002,
+    ("SW_MODE", "SW_POWER"): 0.075,
+}
+
+
+def sample_coupling() -> CouplingTable:
+    """Six coupled electrodes (15 pairs, so the text table's cap shows)."""
+    cp = {name: _METRICS[name][0] for name in _COUPLED}
+    rows, shares = [], []
+    for a in _COUPLED:
+        row = [0.0 if a == b else _CROSSTALK_PF.get((a, b), _CROSSTALK_PF.get((b, a), 0.0))
+               for b in _COUPLED]
+        rows.append(tuple(row))
+        shares.append(tuple(value / cp[a] for value in row))
+    return CouplingTable(_COUPLED, tuple(rows), tuple(shares), 0.5)
+
+
+#: Invented slider response: (position mm, ΔC of SLD_1, SLD_2, SLD_3, estimate mm).
+#: A dip between 18 and 21 mm (dead zone) and one step back at 12 mm.
+_SCAN = (
+    (0.0, 0.080, 0.010, 0.001, 4.5), (3.0, 0.150, 0.030, 0.002, 5.1),
+    (6.0, 0.190, 0.070, 0.004, 7.0), (9.0, 0.120, 0.120, 0.010, 10.2),
+    (12.0, 0.060, 0.160, 0.030, 9.8), (15.0, 0.020, 0.140, 0.070, 15.6),
+    (18.0, 0.004, 0.012, 0.009, float("nan")), (21.0, 0.002, 0.010, 0.011, float("nan")),
+    (24.0, 0.001, 0.040, 0.110, 22.3), (27.0, 0.001, 0.012, 0.085, 22.5),
+)
+
+
+def sample_scan() -> SegmentScan:
+    """The three-segment slider scanned in 3 mm steps (10 positions)."""
+    return SegmentScan(
+        group="SLD", kind="slider", segment_names=("SLD_1", "SLD_2", "SLD_3"),
+        segment_centres_mm=(4.5, 13.5, 22.5), positions_mm=tuple(p[0] for p in _SCAN),
+        delta_pf=tuple(p[1:4] for p in _SCAN), estimated_mm=tuple(p[4] for p in _SCAN),
+        linearity_mm=2.85, dead_zones_mm=((18.0, 21.0),), reversals_mm=(12.0,), step_mm=3.0,
+        cell_mm=0.75, x_mm=131.0, y_mm=130.0)
+
+
+def sample_extras() -> PreciseExtras:
+    return PreciseExtras(sample_coupling(), (sample_scan(),),
+                         ("coupling: 0.5 mm cells (sample text)",
+                          "scans: grounded 10 mm finger (sample text)"))
+
+
+#: Invented quick estimates beside the precise results: (Cp pad, ΔC).
+_QUICK = {"SW_POWER": (8.0, 0.6), "SW_MODE": (8.1, 0.43), "SLD_1": (4.6, 0.2),
+          "SLD_2": (4.7, 0.16), "SLD_3": (4.9, 0.12)}
+
+
+def precise_results() -> tuple[SensorResult, ...]:
+    """:func:`sample_results` with the buttons and slider marked precise."""
+    out = []
+    for r in sample_results():
+        if r.metrics is None or r.sensor.name not in _QUICK:
+            out.append(r)
+            continue
+        pad, delta = _QUICK[r.sensor.name]
+        metrics = dataclasses.replace(
+            r.metrics, method="precise", notes=("precise: real copper (sample text)",),
+            quick_cp_pad_pf=pad, quick_cp_total_pf=pad + r.metrics.cp_trace_pf,
+            quick_delta_c_pf=delta)
+        out.append(dataclasses.replace(r, metrics=metrics))
+    return tuple(out)
+
+
+def precise_report(*, with_board: bool = False) -> Report:
+    """The sample report as a ``--precise`` run would give it."""
+    return sample_report(with_board=with_board, sensors=precise_results(),
+                         precise=sample_extras())

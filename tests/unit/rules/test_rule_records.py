@@ -125,6 +125,10 @@ PAIRS = [
          context(sensor(), metrics={"TOUCH1": metrics(dc=0.16)})),
 ]
 
+# the field step ran but could not solve the electrode (e.g. a loop in quick mode)
+PAIRS += [Pair("electrode-unsolved", context(sensor(), unsolved={"TOUCH1": "a loop"}),
+               context(sensor()))]
+
 # precise-mode rules on hand-built precise records (tests/unit/rules/precise_records.py)
 PAIRS += [Pair(rule_id, context(precise=bad), context(precise=good))
           for rule_id, bad, good in precise_cases()]
