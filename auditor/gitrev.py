@@ -50,6 +50,13 @@ def check_revision(rev: str) -> str:
     return rev
 
 
+def revision_exists(root: Path, rev: str) -> bool:
+    """Whether ``rev`` names a commit in the repository at ``root``."""
+    done = subprocess.run(["git", "rev-parse", "--verify", "--quiet", f"{rev}^{{commit}}"],
+                          cwd=root, capture_output=True, check=False)
+    return done.returncode == 0
+
+
 @dataclass(frozen=True)
 class RepoPath:
     """A file inside a repository: its root and its path from there (posix)."""
@@ -61,7 +68,10 @@ class RepoPath:
 def locate(file: str | Path) -> RepoPath:
     """The repository holding ``file`` and the file's path inside it."""
     absolute = Path(file).resolve()
-    top = run_git(["rev-parse", "--show-toplevel"], absolute.parent).decode().strip()
+    try:
+        top = run_git(["rev-parse", "--show-toplevel"], absolute.parent).decode().strip()
+    except UsageError as exc:
+        raise UsageError(f"{file}: {exc}") from None
     root = Path(top).resolve()
     try:
         relative = absolute.relative_to(root)
@@ -100,13 +110,7 @@ def board_at(file: str | Path, rev: str) -> Iterator[Path]:
     UsageError
         When the board does not exist at that revision.
     """
-    if rev:
-        check_revision(rev)
-    where = locate(file)
-    content = blob(where.root, rev, where.path)
-    if content is None:
-        shown = f"revision {rev}" if rev else "the index (not staged)"
-        raise UsageError(f"{where.path}: not found at {shown}")
+    where, content = _board_blob(file, rev)
     with tempfile.TemporaryDirectory(prefix="padaudit-rev-") as tmp:
         mirror = Path(tmp)
         for extra in companions(where.path):
@@ -114,6 +118,26 @@ def board_at(file: str | Path, rev: str) -> Iterator[Path]:
             if data is not None:
                 _write(mirror, extra, data)
         yield _write(mirror, where.path, content)
+
+
+def check_board_at(file: str | Path, rev: str) -> None:
+    """Raise the error :func:`board_at` would, without copying anything; lets
+    a command refuse a bad revision before it prints a report."""
+    _board_blob(file, rev)
+
+
+def _board_blob(file: str | Path, rev: str) -> tuple[RepoPath, bytes]:
+    if rev:
+        check_revision(rev)
+    where = locate(file)
+    if rev and not revision_exists(where.root, rev):
+        raise UsageError(f"{where.path}: not found at revision {rev} (no such revision in "
+                         f"the repository at {where.root})")
+    content = blob(where.root, rev, where.path)
+    if content is None:
+        shown = f"revision {rev}" if rev else "the index (not staged)"
+        raise UsageError(f"{where.path}: not found at {shown}")
+    return where, content
 
 
 def _write(mirror: Path, path: PurePosixPath, data: bytes) -> Path:

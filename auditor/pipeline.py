@@ -151,9 +151,10 @@ def run_audit(board_path: str | Path, options: AuditOptions | None = None) -> Re
     selection = measuring_selection(setup)
     found, _rejects = find_sensors(board, selection)
     sensors = tuple(sorted(measure(board, found, selection), key=lambda s: s.name))
-    metrics = solve_sensors(board, sensors, setup, opts) if opts.solve else {}
+    metrics, broken = _without_unfollowed(
+        sensors, solve_sensors(board, sensors, setup, opts) if opts.solve else {})
     extras = _precise_extras(board, sensors, setup) if opts.solve and opts.precise else None
-    unsolved = _unsolved(sensors, metrics, opts) if opts.solve else {}
+    unsolved = {**_unsolved(sensors, metrics, opts), **broken} if opts.solve else {}
     return build_report(board, sensors, metrics, setup, extras, unsolved)
 
 
@@ -162,6 +163,21 @@ def _unsolved(sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetrics],
     from auditor.pipeline_field import unsolved_reasons
 
     return unsolved_reasons(sensors, metrics, options.precise)
+
+
+#: Why a sensor whose sense path was not followed gets no field result.
+UNFOLLOWED_REASON = ("sense path not followed to a controller pin, so the trace's "
+                     "capacitance is unknown and Cp and ΔC/Cp would be wrong")
+
+
+def _without_unfollowed(sensors: tuple[Sensor, ...], metrics: dict[str, PadMetrics]
+                        ) -> tuple[dict[str, PadMetrics], dict[str, str]]:
+    """Drop the results of sensors with a broken sense path: without the
+    trace, Cp is too low and the ratio too high, and a broken route would
+    look like an improvement in ``diff``."""
+    broken = {s.name for s in sensors if s.path is not None and not s.path.complete}
+    kept = {name: m for name, m in metrics.items() if name not in broken}
+    return kept, {name: UNFOLLOWED_REASON for name in sorted(broken & set(metrics))}
 
 
 def _precise_extras(board: Board, sensors: tuple[Sensor, ...],

@@ -40,7 +40,8 @@ from typing import Literal
 
 from auditor.config import Config
 from auditor.errors import UsageError
-from auditor.field.api import PadSetup, solve_pad
+from auditor.field.api import PadSetup, PadSolve, solve_pad
+from auditor.field.batch import solve_pads
 from auditor.field.pad_model import DEFAULT_GROUND_MARGIN_MM
 from auditor.model.board import Board
 from auditor.pipeline_stack import board_layers_from_touch, overlay_with_mask, touch_mask
@@ -224,10 +225,53 @@ def snapped_to_finger(setup: PadSetup, notes: list[str]) -> PadSetup:
 
 def metrics_from_quick(mapped: FieldInput) -> PadMetrics:
     """Solve one mapped pad with the quick axisymmetric model."""
-    solve = solve_pad(mapped.setup)
+    return _quick_metrics(mapped, solve_pad(mapped.setup))
+
+
+def _quick_metrics(mapped: FieldInput, solve: PadSolve) -> PadMetrics:
     return PadMetrics(solve.cp_pad_pf, solve.cp_trace_pf, solve.cp_total_pf,
                       solve.delta_c_pf, solve.delta_ratio, "quick",
                       mapped.notes + solve.notes)
+
+
+class _InOrder:
+    """Reports progress in sensor order as results become ready (parallel
+    quick solves finish in any order)."""
+
+    def __init__(self, sensors: tuple[Sensor, ...], progress: Progress | None) -> None:
+        self._sensors, self._progress = sensors, progress
+        self._finished: set[str] = set()
+        self._reported = 0
+
+    def finish(self, name: str) -> None:
+        self._finished.add(name)
+        while (self._reported < len(self._sensors)
+               and self._sensors[self._reported].name in self._finished):
+            self._reported += 1
+            if self._progress is not None:
+                self._progress(self._sensors[self._reported - 1].name, self._reported,
+                               len(self._sensors))
+
+
+def _solve_quick(board: Board, sensors: tuple[Sensor, ...], config: Config,
+                 limits: Mapping[str, float | int | bool],
+                 in_order: _InOrder) -> dict[str, PadMetrics]:
+    """Quick metrics of every self-capacitance sensor the disk model fits;
+    each distinct setup solved once (:func:`auditor.field.batch.solve_pads`:
+    over idle cores when there are some)."""
+    mapped = {s.name: pad_setup_for(s, board, config, limits) for s in sensors
+              if s.kind in SELF_KINDS and s.area_mm2 > 0 and not quick_unfit_reason(s)}
+    names: dict[PadSetup, list[str]] = {}
+    for name, field_input in mapped.items():
+        names.setdefault(field_input.setup, []).append(name)
+
+    def solved(setup: PadSetup) -> None:
+        for name in names[setup]:
+            in_order.finish(name)
+
+    solves = solve_pads([m.setup for m in mapped.values()], on_solved=solved)
+    return {name: _quick_metrics(field_input, solve)
+            for (name, field_input), solve in zip(mapped.items(), solves, strict=True)}
 
 
 def _precise_or_quick(sensor: Sensor, board: Board, config: Config, mapped: FieldInput,
@@ -289,28 +333,29 @@ def solve_sensors(board: Board, sensors: tuple[Sensor, ...], config: Config, *,
                   ) -> dict[str, PadMetrics]:
     """Field metrics per sensor name (``method`` "quick" or "precise").
 
-    Self-capacitance electrodes (button, slider, wheel, proximity) are solved
-    one by one; a mutual receive electrode gets the Cm of its pair; a
+    Self-capacitance electrodes (button, slider, wheel, proximity) are
+    solved; a mutual receive electrode gets the Cm of its pair; a
     transmit electrode, a loop the quick disk model cannot represent
     (:func:`quick_unfit_reason`), or a sensor that cannot be mapped, gets no
     entry (the report shows it unsolved; :func:`unsolved_reasons` says why)
-    — nothing is made up. ``progress`` is called
-    as ``progress(sensor_name, done, total)``.
+    — nothing is made up. The quick solves run first, each distinct setup
+    once. ``progress`` is called as ``progress(sensor_name, done, total)``,
+    in sensor order.
     """
     limits = thresholds or {}
-    out: dict[str, PadMetrics] = {}
-    for done, sensor in enumerate(sensors, start=1):
-        if sensor.kind in SELF_KINDS and sensor.area_mm2 > 0 and (
-                precise or not quick_unfit_reason(sensor)):
+    in_order = _InOrder(sensors, progress)
+    out = {} if precise else _solve_quick(board, sensors, config, limits, in_order)
+    for sensor in sensors:
+        if sensor.name in out:
+            pass
+        elif precise and sensor.kind in SELF_KINDS and sensor.area_mm2 > 0:
             mapped = pad_setup_for(sensor, board, config, limits)
-            out[sensor.name] = (_precise_or_quick(sensor, board, config, mapped, sensors)
-                                if precise else metrics_from_quick(mapped))
+            out[sensor.name] = _precise_or_quick(sensor, board, config, mapped, sensors)
         elif sensor.kind == "mutual-rx":
             from auditor.pipeline_mutual import metrics_for_mutual, mutual_partner
 
             tx = mutual_partner(sensor, sensors)
             if tx is not None:
                 out[sensor.name] = metrics_for_mutual(sensor, tx, board, config, limits)
-        if progress is not None:
-            progress(sensor.name, done, len(sensors))
-    return out
+        in_order.finish(sensor.name)
+    return {s.name: out[s.name] for s in sensors if s.name in out}

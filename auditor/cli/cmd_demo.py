@@ -12,6 +12,7 @@ import argparse
 import dataclasses
 import sys
 
+from auditor.cli.audit_runner import shown_as
 from auditor.cli.main import EXIT_CLEAN, EXIT_FINDINGS
 from auditor.cli.progress import ProgressCallback
 from auditor.cli.report_options import add_report_options, emit
@@ -47,7 +48,9 @@ def run(args: argparse.Namespace) -> int:
     progress = ProgressCallback(quiet=args.quiet)
     try:
         options = dataclasses.replace(options_from_args(args), progress=progress)
-        report = run_audit(str(board), options)
+        # Show the file's name, not where this venv put it, so the demo's
+        # output is the same on every machine.
+        report = shown_as(run_audit(str(board), options), board.name)
     finally:
         progress.close()
     code = emit(report, args)

@@ -42,7 +42,7 @@ def add_report_options(parser: argparse.ArgumentParser) -> None:
     group.add_argument("--color", "--colour", dest="color", choices=COLOUR_CHOICES,
                        default="auto", help="colour in the terminal report (default: auto)")
     group.add_argument("--quiet", action="store_true",
-                       help="no progress bar and no summary line")
+                       help="no progress bar, and no summary line when the report goes to --output")
     group.add_argument("--order", choices=ORDERS, default="weakest",
                        help="electrode table order: weakest first or by rank")
     gate = parser.add_argument_group("gate")
@@ -118,6 +118,10 @@ def emit(report: Report, args: argparse.Namespace, *, audit: AuditFn | None = No
     environment = os.environ if env is None else env
     fmt, order = getattr(args, "format", "text"), getattr(args, "order", "weakest")
     colour = use_colour(getattr(args, "color", "auto"), out, environment)
+    if getattr(args, "against", None):
+        from auditor.gitrev import check_board_at
+
+        check_board_at(report.info.board_path, args.against)
     report = _gated(with_cautions(report), args)
     if getattr(args, "svg", None):
         try:

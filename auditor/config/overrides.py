@@ -33,9 +33,13 @@ def parse_overlay_spec(text: str) -> Overlay:
     try:
         epsilon_r = float(what)
     except ValueError:
-        return overlay_of_material(thickness_mm, what)
+        try:
+            return overlay_of_material(thickness_mm, what)
+        except UsageError as exc:
+            raise UsageError(f"--overlay {text!r}: {exc}") from None
     if not 1.0 <= epsilon_r < math.inf:
-        raise UsageError(f"--overlay {text!r}: relative permittivity must be at least 1")
+        raise UsageError(f"--overlay {text!r}: relative permittivity must be a finite number "
+                         "of at least 1")
     return Overlay(thickness_mm, epsilon_r, "")
 
 

@@ -39,15 +39,17 @@ def available_cores() -> int:
 
 
 def _busy(cores: int) -> bool:
-    """True when other work already keeps the cores busy.
+    """True unless about one core is idle (1-minute load below cores - 0.5).
 
-    Measured on the shared 2-core build machine with the demo board's 11
-    distinct solves: at a 1-minute load average near 2, two workers halved
-    the wall time; near 4 (other solver processes running) they were 10-30 %
-    slower than one, so above ``cores + 1`` the solves stay in this process.
+    Measured on a shared 2-core machine with the demo board's 11 distinct
+    solves (worker start-up about 40 ms): once, with one core mostly free,
+    two workers halved the wall time; with other solver processes keeping
+    both cores busy (load 1.3-4) two workers were as often slower as faster
+    than one, by up to 60 %. Work that competes for the cores gains nothing
+    from more processes, so the solves then stay in this process.
     """
     try:
-        return os.getloadavg()[0] >= cores + 1
+        return os.getloadavg()[0] >= cores - 0.5
     except OSError:  # load average unavailable
         return False
 

@@ -219,6 +219,12 @@ def capacitance_matrix(stiffness: sp.csr_matrix, conductor_nodes: Sequence[Index
 #: finger has 19 nodes at the default mesh; two factorisations took 25 %
 #: less CPU).
 UPDATE_MAX_NODES = 8
+#: Meshes from this many nodes on are factorised in nested-dissection order,
+#: and only they take a second factorisation for a large extra conductor;
+#: on smaller ones (the Richardson coarse level, a plain round pad) SuperLU's
+#: own ordering and the update were faster (measured: 42 against 50 ms for
+#: the bench_field round pad).
+LARGE_GRID_NODES = 8000
 
 
 def capacitance_pair(stiffness: sp.csr_matrix, conductor_nodes: Sequence[IndexArray],
@@ -227,9 +233,9 @@ def capacitance_pair(stiffness: sp.csr_matrix, conductor_nodes: Sequence[IndexAr
     """Maxwell matrices without and with one extra conductor, on one mesh.
 
     Both are complete solves: the first with the extra conductor's nodes
-    free (it is absent), the second with them fixed (a conductor). For a
-    small extra conductor (at most :data:`UPDATE_MAX_NODES` nodes) the
-    second reuses the first's LU: the extra nodes stay unknowns of the
+    free (it is absent), the second with them fixed (a conductor). On a
+    small mesh, or for a small extra conductor (at most
+    :data:`UPDATE_MAX_NODES` nodes), the second reuses the first's LU: the extra nodes stay unknowns of the
     factorised system and their potential is imposed through their
     reactions lambda, found from the small dense system
     (E^T K^-1 E) lambda = u_F - E^T K^-1 r (a capacitance-matrix update,
@@ -237,10 +243,15 @@ def capacitance_pair(stiffness: sp.csr_matrix, conductor_nodes: Sequence[IndexAr
     extra conductor is factorised on its own. Either way the result equals a
     separate solve with those nodes fixed, to rounding.
 
-    ``grid_shape`` (the tensor mesh's node counts) selects the
-    :func:`nested_dissection` elimination order; without it SuperLU orders.
+    ``grid_shape`` (the tensor mesh's node counts) selects, for a mesh of
+    at least :data:`LARGE_GRID_NODES`, the :func:`nested_dissection`
+    elimination order and the second factorisation; otherwise SuperLU
+    orders and the update is used.
     """
-    if extra_nodes is not None and len(extra_nodes) > UPDATE_MAX_NODES:
+    if grid_shape is not None and grid_shape[0] * grid_shape[1] < LARGE_GRID_NODES:
+        grid_shape = None
+    if (extra_nodes is not None and grid_shape is not None
+            and len(extra_nodes) > UPDATE_MAX_NODES):
         base, _ = capacitance_pair(stiffness, conductor_nodes, None, grid_shape)
         if np.isin(extra_nodes, np.concatenate([*conductor_nodes, extra_nodes[:0]])).any():
             raise ValueError("the extra conductor touches another conductor")

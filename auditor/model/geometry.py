@@ -129,10 +129,19 @@ def polygon(coords: Coords) -> BaseGeometry:
 
 
 def clean(geom: BaseGeometry) -> BaseGeometry:
-    """Repair self-touching or inverted rings, keep only the areal parts."""
+    """Repair self-touching or inverted rings, keep only the areal parts.
+
+    GEOS's "structure" repair (shells unioned, holes subtracted) rather than
+    the default "linework" one: on KiCad's fractured zone fills (one ring
+    running out to every hole and back along zero-width bridges) both give
+    the same copper, to the last bit of area, on the demo and every fixture
+    board, and "structure" is about 3 times faster on the demo's large
+    hatched fills; it returns polygons directly, and unlike ``buffer(0)`` it
+    keeps both lobes of a self-crossing (bow-tie) ring.
+    """
     if geom.is_valid:
         return geom
-    fixed = shapely.make_valid(geom)
+    fixed = shapely.make_valid(geom, method="structure", keep_collapsed=False)
     if fixed.geom_type in ("Polygon", "MultiPolygon"):
         return fixed
     parts = [g for g in getattr(fixed, "geoms", [fixed])

@@ -50,7 +50,7 @@ def read_board(path: str | Path) -> Board:
     """
     file = Path(path)
     if file.is_dir():
-        raise BoardFileError(path, "is a directory, not a board file")
+        raise BoardFileError(path, "is a directory, not a board file" + _boards_inside(file))
     try:
         data = file.read_bytes()
     except FileNotFoundError:
@@ -58,6 +58,16 @@ def read_board(path: str | Path) -> Board:
     except OSError as exc:
         raise BoardFileError(path, f"cannot read: {exc.strerror or exc}") from None
     return read_board_text(decode(data, path), str(path))
+
+
+def _boards_inside(folder: Path) -> str:
+    """A hint naming the boards in a folder given where a board was expected
+    (a KiCad project folder, most likely)."""
+    boards = sorted(folder.glob("*.kicad_pcb"))
+    if not boards:
+        return ""
+    return "; pass the board inside it: " + ", ".join(str(b) for b in boards[:3]) + (
+        ", ..." if len(boards) > 3 else "")
 
 
 def read_board_text(text: str, path: str = "<string>") -> Board:

@@ -17,8 +17,9 @@ COPPER_MM = 0.035
 MASK_MM = 0.010
 MASK_EPSILON_R = 3.3
 DEFAULT_THICKNESS_MM = 1.6
-DEFAULT_ORIGIN = ("KiCad default stackup (FR-4 εr 4.5, 35 µm copper, 10 µm mask εr 3.3; "
-                  "kicad-format.md §5 [S11])")
+DEFAULT_ORIGIN = ("KiCad default stackup (FR-4 εr 4.5, 35 µm copper, 10 µm mask εr 3.3; from "
+                  "KiCad source pcbnew/board_stackup_manager/stackup_predefined_prms.h, "
+                  "see docs/reference/kicad-format.md §5 [S11])")
 
 _KINDS = {"copper": "copper", "core": "dielectric", "prepreg": "dielectric"}
 

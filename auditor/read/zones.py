@@ -1,7 +1,8 @@
 """Copper zones and rule areas (kicad-format.md §10).
 
 Copper = union of the zone's ``filled_polygon`` entries per layer, each a
-weakly simple "fractured" ring cleaned with make_valid. Fills written without
+weakly simple "fractured" ring cleaned with make_valid (GEOS's "structure"
+method, see :func:`auditor.model.geometry.clean`). Fills written without
 ``(filled_areas_thickness no)`` before 20250210 are stroked outlines whose
 real copper is the polygon grown by ``min_thickness/2`` (§0.6). ``(hatch …)``
 at zone level is only the outline's display style; hatched copper is

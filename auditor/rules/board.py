@@ -34,7 +34,7 @@ def read_incomplete(call: RuleCall) -> Iterator[Finding]:
     "no-sensors",
     title="No touch electrode was found",
     fix="Name the sense nets (touch, sense, button, slider ...) or list them under "
-        "[tool.padaudit.sensors] (nets, netclasses, refs); `padaudit sensors BOARD` shows "
+        "[tool.padaudit.sensors] (nets, net_classes, refs); `padaudit sensors BOARD` shows "
         "what was considered.",
     severity=Severity.ERROR,
 )

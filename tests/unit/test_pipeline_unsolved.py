@@ -46,3 +46,22 @@ def test_reasons_only_for_unsolved_electrodes() -> None:
     # In precise mode the shape is solved as drawn: a missing result is not
     # blamed on the disk model.
     assert "loop" not in unsolved_reasons(sensors, solved, precise=True)["PROX"]
+
+
+def test_broken_sense_path_gives_no_numbers(tmp_path) -> None:  # type: ignore[no-untyped-def]
+    # Shrinking BTN2's pad (line 1050 of the demo) detaches it from its trace.
+    # Without the trace its Cp would be too low and its ratio too high, so a
+    # broken route would look like an improvement: it must be unsolved instead.
+    from auditor.demo import demo_board_path, demo_config_path
+    from auditor.pipeline import UNFOLLOWED_REASON, AuditOptions, run_audit
+
+    lines = demo_board_path().read_text("utf-8").splitlines(keepends=True)
+    assert "(size 8 8)" in lines[1049]
+    lines[1049] = lines[1049].replace("(size 8 8)", "(size 6.5 6.5)")
+    board = tmp_path / "broken.kicad_pcb"
+    board.write_text("".join(lines), "utf-8")
+    report = run_audit(board, AuditOptions(config_path=str(demo_config_path())))
+    btn2 = next(r for r in report.sensors if r.sensor.name == "BTN2")
+    assert btn2.metrics is None and btn2.verdict == "unsolved"
+    unsolved = [f.finding for f in report.findings if f.finding.rule_id == "electrode-unsolved"]
+    assert any(f.sensor == "BTN2" and UNFOLLOWED_REASON in f.message for f in unsolved)
