@@ -90,7 +90,8 @@ class Sensor:
     """One sense electrode.
 
     ``name`` is unique on the board and stable across re-saves (reference or
-    net based). ``group`` and ``index`` order slider/wheel segments.
+    net based). ``x_mm``/``y_mm`` is the copper's centroid, or a point on the
+    copper when the centroid falls outside it (a loop). ``group`` and ``index`` order slider/wheel segments.
     """
 
     name: str

@@ -95,6 +95,10 @@ def _position_key(piece: Piece) -> tuple[str, float, float]:
 def _sensor(board: Board, cand: Candidate, name: str) -> Sensor:
     piece = cand.piece
     c = piece.geometry.centroid
+    if not piece.geometry.contains(c):
+        # A loop's centroid lies in its hole, often on another electrode;
+        # findings and markers placed there would point at the wrong copper.
+        c = piece.geometry.representative_point()
     refs = tuple(sorted({board.footprint(u).ref for u in piece.footprint_uids}))
     front = piece.layer == board.copper_layers[0]
     return Sensor(name=name, kind="button", nets=(piece.net,), refs=refs, layer=piece.layer,
