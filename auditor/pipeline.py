@@ -13,11 +13,11 @@ import argparse
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, replace
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from auditor import __version__
 from auditor.config import Config, discover_config, with_overrides
 from auditor.decide import Policy, decide, sensitivity_ranks, sensor_verdict
-from auditor.field.precise.results import PreciseExtras
 from auditor.model.board import Board
 from auditor.model.items import ReadWarning
 from auditor.read import read_board
@@ -28,6 +28,9 @@ from auditor.rules.registry import all_rules, run_rules
 from auditor.sensors import find_sensors, measure
 from auditor.sensors.model import Sensor
 from auditor.sensors.selection import SensorSelection
+
+if TYPE_CHECKING:  # the precise solver pulls in scipy.interpolate: load it only when used
+    from auditor.field.precise.results import PreciseExtras
 
 
 @dataclass(frozen=True)
