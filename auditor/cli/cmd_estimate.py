@@ -25,6 +25,9 @@ MAINS_CAUTION = ("caution: touch electrodes on mains-referenced circuits need is
                  "for it; product safety standards (e.g. IEC 62368-1, IEC 60335-1), local "
                  "codes and licensed practice govern, not this estimate.")
 _MAX_SWEEP = 50
+_MAX_PAD_DIAMETER_MM = 1000.0  # 1 m; common practice, no source
+_MAX_VALUE = 1000.0  # any length option (mm), εr or pF; common practice, no source
+_MIN_OVERLAY_MM = 0.001  # thinner layers: the finger touches the pad, the mesh fails
 #: Cells of ``--precise``: 0.25 mm keeps the round pad within about 0.5 % of
 #: the quick solve (tests/unit/test_pipeline_precise.py) at about 1.5 s a pad.
 _PRECISE_CELL_MM = 0.25
@@ -91,6 +94,10 @@ def _number(option: str, text: str, low: float | None = 0.0, inclusive: bool = F
                                                          (value == low and not inclusive))):
         bound = f">= {low:g}" if inclusive else f"> {low:g}"
         raise UsageError(f"{option}: expected a finite number {bound}, got {text!r}")
+    if value > _MAX_VALUE:
+        # Far past any board; the mesh would not fit in floating point.
+        raise UsageError(f"{option}: {value:g} is larger than {_MAX_VALUE:g}, the largest "
+                         "value estimated")
     return value
 
 
@@ -105,10 +112,20 @@ def _optional(option: str, text: str) -> float | None:
     return None if text.strip().lower() == "none" else _number(option, text)
 
 
+def _plane_depth(text: str) -> float | None:
+    depth_mm = _optional("--plane-below", text)
+    if depth_mm is not None and depth_mm < _MIN_OVERLAY_MM:
+        # The graded mesh cannot resolve a thinner dielectric and returned a far
+        # too small Cp without complaint.
+        raise UsageError(f"--plane-below: {depth_mm:g} mm is closer than {_MIN_OVERLAY_MM:g} "
+                         "mm (1 µm)")
+    return depth_mm
+
+
 def _diameters(text: str) -> tuple[float, ...]:
     parts = text.split(":")
     if len(parts) == 1:
-        return (_number("--pad-diameter", text),)
+        return _sizeable((_number("--pad-diameter", text),))
     if len(parts) != 3:
         raise UsageError(f"--pad-diameter: expected MM or start:stop:step, got {text!r}")
     start, stop, step = (_number("--pad-diameter", p) for p in parts)
@@ -117,7 +134,16 @@ def _diameters(text: str) -> tuple[float, ...]:
     count = int(math.floor((stop - start) / step + 1e-9)) + 1
     if count > _MAX_SWEEP:
         raise UsageError(f"--pad-diameter: {count} steps, at most {_MAX_SWEEP} allowed")
-    return tuple(round(start + i * step, 9) for i in range(count))
+    return _sizeable(tuple(round(start + i * step, 9) for i in range(count)))
+
+
+def _sizeable(diameters: tuple[float, ...]) -> tuple[float, ...]:
+    # Past this the mesh no longer fits in floating point and the solver fails
+    # inside; no printed board is that large anyway.
+    if max(diameters) > _MAX_PAD_DIAMETER_MM:
+        raise UsageError(f"--pad-diameter: {max(diameters):g} mm is larger than "
+                         f"{_MAX_PAD_DIAMETER_MM:g} mm, the largest pad estimated")
+    return diameters
 
 
 def _overlay(text: str) -> _Overlay:
@@ -127,10 +153,16 @@ def _overlay(text: str) -> _Overlay:
     if not sep:
         raise UsageError(f"--overlay: expected MM:ER, MM:MATERIAL or none, got {text!r}")
     mm = _number("--overlay", thickness)
+    if mm < _MIN_OVERLAY_MM:
+        raise UsageError(f"--overlay: {mm:g} mm is thinner than {_MIN_OVERLAY_MM:g} mm "
+                         "(1 µm); for no cover write --overlay none")
     try:
         er = float(what)
     except ValueError:
-        found = material(what)
+        try:
+            found = material(what)
+        except UsageError as exc:
+            raise UsageError(f"--overlay {text!r}: {exc}") from None
         return _Overlay(mm, found.er, f"{found.name}, er {found.er:g} ({found.origin})")
     if not (math.isfinite(er) and er >= 1.0):
         raise UsageError(f"--overlay: er must be >= 1, got {what!r}")
@@ -146,7 +178,7 @@ def _setup(args: argparse.Namespace, diameter_mm: float, overlay: _Overlay) -> P
     outer = radius + (gap or 0.0) + _number("--ground-width", args.ground_width)
     return PadSetup(
         pad_area_mm2=math.pi * radius ** 2, gap_mm=gap, ground_outer_mm=outer,
-        plane_depth_mm=_optional("--plane-below", args.plane_below),
+        plane_depth_mm=_plane_depth(args.plane_below),
         plane_fill=_fill("--plane-fill", args.plane_fill),
         plane_hatch_pitch_mm=_number("--hatch-pitch", args.hatch_pitch),
         board_layers=(BoardLayer(_number("--board-thickness", args.board_thickness),

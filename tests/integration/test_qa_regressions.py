@@ -111,3 +111,33 @@ def test_default_stackup_names_its_original_source(
     assert code == 0
     (line,) = [ln for ln in out.splitlines() if ln.strip().startswith("no-stackup")]
     assert "stackup_predefined_prms.h" in line and "docs/reference/kicad-format.md" in line
+
+
+@pytest.mark.parametrize("args, says", [
+    (["--pad-diameter", "1e9"], "--pad-diameter: "),
+    (["--pad-diameter", "10", "--gap", "1e9"], "--gap: "),
+    (["--pad-diameter", "10", "--finger", "1e9"], "--finger: "),
+    (["--pad-diameter", "10", "--overlay", "1e-9:2"], "--overlay: "),
+    (["--pad-diameter", "10", "--overlay", "2:abc"], "--overlay '2:abc': unknown material"),
+])
+def test_absurd_estimate_input_is_a_usage_error(args: list[str], says: str,
+                                                capsys: pytest.CaptureFixture[str]) -> None:
+    """These once ended in exit 3 (an internal error from the mesher) or an
+    error that did not name the option."""
+    code = main(["estimate", *args])
+    out, err = capsys.readouterr()
+    assert (code, out) == (2, "")
+    assert err.startswith(f"padaudit: {says}") and err.count("\n") == 1
+
+
+def test_plane_closer_than_the_mesh_resolves_is_refused(
+        capsys: pytest.CaptureFixture[str]) -> None:
+    """A plane 1 nm below a 10 mm pad gave Cp 4.9 pF, where a parallel plate
+    is eps_r eps0 A / d = 4.4 x 8.854e-12 x 78.5e-6 / 1e-12 F, about 3e6 pF
+    (textbook parallel-plate formula); now refused instead of silently wrong."""
+    code = main(["estimate", "--pad-diameter", "10", "--plane-below", "1e-6"])
+    out, err = capsys.readouterr()
+    assert (code, out) == (2, "")
+    assert err.startswith("padaudit: --plane-below: ") and err.count("\n") == 1
+    code = main(["estimate", "--pad-diameter", "10", "--plane-below", "0.01", "--json"])
+    assert code == 0
