@@ -3,11 +3,12 @@
 from __future__ import annotations
 
 from collections.abc import Iterator
+from typing import Any
 
 from auditor.rules.context import EPS_MM
 from auditor.rules.finding import Finding, Severity
 from auditor.rules.registry import RuleCall, sensor_rule
-from auditor.sensors.model import Neighbour, Sensor
+from auditor.sensors.model import Neighbour, SensePath, Sensor
 
 
 @sensor_rule(
@@ -96,6 +97,21 @@ def trace_too_many_vias(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
             (("vias", float(path.vias)), ("max", limit)))
 
 
+def _at(neighbour: Neighbour) -> dict[str, Any]:
+    """Place a finding where the other net comes closest to the sense path
+    (the electrode's own place when that is not known)."""
+    if neighbour.x_mm is None or neighbour.y_mm is None:
+        return {}
+    return {"x_mm": neighbour.x_mm, "y_mm": neighbour.y_mm, "layer": neighbour.layer}
+
+
+def _at_series_part(path: SensePath) -> dict[str, Any]:
+    """Place a finding at the series part (the thing to move)."""
+    if path.series_x_mm is None or path.series_y_mm is None:
+        return {}
+    return {"x_mm": path.series_x_mm, "y_mm": path.series_y_mm, "layer": path.series_layer}
+
+
 def _noisy(neighbour: Neighbour, call: RuleCall) -> bool:
     return neighbour.noisy or call.board.settings.is_noisy_net(neighbour.net)
 
@@ -130,7 +146,7 @@ def trace_parallel_run(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
                 f"runs {neighbour.parallel_mm:.1f} mm beside net {neighbour.net}, more than "
                 f"{limit_mm:.1f} mm", sensor,
                 (("parallel_mm", neighbour.parallel_mm), ("max_mm", limit_mm)),
-                nets=sensor.nets + (neighbour.net,))
+                nets=sensor.nets + (neighbour.net,), **_at(neighbour))
 
 
 @sensor_rule(
@@ -154,7 +170,7 @@ def trace_near_noisy_net(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
                 f"noisy net {neighbour.net} comes within {neighbour.min_distance_mm:.2f} mm, "
                 f"less than {limit_mm:.2f} mm", sensor,
                 (("distance_mm", neighbour.min_distance_mm), ("min_mm", limit_mm)),
-                nets=sensor.nets + (neighbour.net,))
+                nets=sensor.nets + (neighbour.net,), **_at(neighbour))
 
 
 @sensor_rule(
@@ -241,4 +257,4 @@ def series_resistor_far(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
             f"{path.series_ref} is {path.series_to_pin_mm:.1f} mm of trace from the controller "
             f"pin, more than {limit_mm:.1f} mm", sensor,
             (("distance_mm", path.series_to_pin_mm), ("max_mm", limit_mm)),
-            refs=sensor.refs + (path.series_ref,))
+            refs=sensor.refs + (path.series_ref,), **_at_series_part(path))

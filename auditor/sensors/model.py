@@ -35,6 +35,10 @@ class Neighbour:
     crossings: int = 0  # crossings on adjacent layers
     noisy: bool = False
     sense: bool = False  # the net is (part of) another electrode's sense path
+    #: Where on the sense path the other net comes closest (None: crossings only).
+    x_mm: float | None = None
+    y_mm: float | None = None
+    layer: str = ""
 
 
 @dataclass(frozen=True)
@@ -49,6 +53,10 @@ class SensePath:
     controller_pin: str = ""
     series_ref: str = ""
     series_to_pin_mm: float | None = None  # path length series part -> pin
+    #: Where the series part's pad on the electrode's net sits (None: no part).
+    series_x_mm: float | None = None
+    series_y_mm: float | None = None
+    series_layer: str = ""
     neighbours: tuple[Neighbour, ...] = ()
     under_electrodes: tuple[str, ...] = ()  # other sensors it passes under/beside
     complete: bool = True  # False when the path could not be followed to a pin

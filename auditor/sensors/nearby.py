@@ -13,7 +13,7 @@ from collections.abc import Collection, Sequence
 from shapely import STRtree
 from shapely.geometry import LineString, MultiLineString
 from shapely.geometry.base import BaseGeometry
-from shapely.ops import unary_union
+from shapely.ops import nearest_points, unary_union
 
 from auditor.model.board import Board
 from auditor.model.geometry import Arc
@@ -39,26 +39,40 @@ def neighbours_of_path(board: Board, tracks: Sequence[Track], skip_nets: Collect
     """Other nets beside or crossing ``tracks``, sorted by net name."""
     parallel: dict[str, float] = {}
     closest: dict[str, float] = {}
+    where: dict[str, tuple[float, float, str]] = {}
     crossings: dict[str, int] = {}
     groups: dict[tuple[str, float], list[Track]] = {}
     for tr in tracks:
         groups.setdefault((tr.layer, round(tr.width_mm, 6)), []).append(tr)
     for (layer, width), group in sorted(groups.items()):
-        for net, length, dist in _beside(board, layer, width, group, skip_nets, selection):
+        for net, length, dist, (x, y) in _beside(board, layer, width, group, skip_nets,
+                                                 selection):
             parallel[net] = parallel.get(net, 0.0) + length
-            closest[net] = min(closest.get(net, dist), dist)
+            if dist < closest.get(net, float("inf")):
+                closest[net], where[net] = dist, (x, y, layer)
     for tr in tracks:
         for net, count in _crossing(board, tr, centre_line(tr), skip_nets):
             crossings[net] = crossings.get(net, 0) + count
     nets = sorted(set(parallel) | set(crossings))
     return tuple(Neighbour(net, parallel.get(net, 0.0), closest.get(net, 0.0),
-                           crossings.get(net, 0), matches(net, selection.noisy_nets))
+                           crossings.get(net, 0), matches(net, selection.noisy_nets),
+                           *_place(where.get(net)))
                  for net in nets)
 
 
+def _place(spot: tuple[float, float, str] | None) -> tuple[bool, float | None, float | None, str]:
+    """``sense`` (set later by the caller) and the closest-approach place."""
+    if spot is None:
+        return False, None, None, ""
+    x, y, layer = spot
+    return False, round(x, 4), round(y, 4), layer
+
+
 def _beside(board: Board, layer: str, width_mm: float, tracks: Sequence[Track],
-            skip: Collection[str], selection: SensorSelection) -> list[tuple[str, float, float]]:
-    """(net, parallel length, edge distance) for tracks of one layer and width."""
+            skip: Collection[str], selection: SensorSelection
+            ) -> list[tuple[str, float, float, tuple[float, float]]]:
+    """(net, parallel length, edge distance, closest point on the path) for
+    tracks of one layer and width."""
     reach = selection.neighbour_distance_mm + width_mm / 2
     lines = MultiLineString([centre_line(t) for t in tracks])
     corridor = lines.buffer(reach + 1e-3)
@@ -74,7 +88,9 @@ def _beside(board: Board, layer: str, width_mm: float, tracks: Sequence[Track],
         if copper.is_empty:
             continue
         length = float(lines.intersection(copper.buffer(reach, quad_segs=8)).length)
-        out.append((net, length, float(copper_of_path.distance(copper))))
+        on_path = nearest_points(copper_of_path, copper)[0]
+        out.append((net, length, float(copper_of_path.distance(copper)),
+                    (float(on_path.x), float(on_path.y))))
     return out
 
 

@@ -62,6 +62,10 @@ def _path(board: Board, sensor: Sensor, others: Sequence[Sensor], sel: SensorSel
         controller_pin=pin[1],
         series_ref=reach.series_pad.ref if reach.series_pad is not None else "",
         series_to_pin_mm=series_mm,
+        series_x_mm=reach.series_pad.x_mm if reach.series_pad is not None else None,
+        series_y_mm=reach.series_pad.y_mm if reach.series_pad is not None else None,
+        series_layer=(reach.series_pad.copper_layers[0] if reach.series_pad is not None
+                      and reach.series_pad.copper_layers else ""),
         neighbours=neighbours_of_path(board, tracks, skip, sel),
         under_electrodes=sensors_beside_path(board, tracks, sensor, others,
                                              sel.neighbour_distance_mm),

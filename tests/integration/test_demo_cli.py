@@ -66,3 +66,19 @@ def test_weak_buttons_rank_last(demo_json: dict) -> None:  # type: ignore[type-a
     ranks = {s["name"]: s["rank"] for s in demo_json["sensors"] if s["rank"]}
     worst_two = sorted(ranks, key=lambda n: ranks[n])[-2:]
     assert set(worst_two) == {"BTN1", "BTN2"}
+
+
+def test_trace_findings_point_at_the_offending_place(demo_json: dict) -> None:  # type: ignore[type-arg]
+    # Where each problem was planted is recorded by the generator
+    # (fixtures/demo/planted.json); a finding must lead the user there, on the
+    # right layer, not to the electrode it belongs to.
+    planted = {p["problem"]: p for p in PLANTED["planted"]}
+    found = {f["rule_id"]: f for f in demo_json["findings"]}
+    resistor, beside = planted["series-resistor-far"], planted["sense-beside-led-line"]
+    far = found["series-resistor-far"]
+    assert far["layer"] == resistor["layer"]
+    assert abs(far["x_mm"] - resistor["x_mm"]) < 2 and abs(far["y_mm"] - resistor["y_mm"]) < 2
+    run = found["trace-parallel-run"]
+    assert run["layer"] == beside["layer"]
+    # The closest approach lies on the planted 22 mm stretch centred on x = 92.
+    assert abs(run["x_mm"] - beside["x_mm"]) <= 11.5 and abs(run["y_mm"] - beside["y_mm"]) < 1
