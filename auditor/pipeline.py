@@ -26,7 +26,7 @@ from auditor.rules.context import RuleContext, RuleSettings, ThresholdValue
 from auditor.rules.profiles import Profile, load_profile
 from auditor.rules.registry import all_rules, run_rules
 from auditor.sensors import find_sensors, measure
-from auditor.sensors.model import Sensor
+from auditor.sensors.model import Sensor, name_order
 from auditor.sensors.selection import SensorSelection
 
 if TYPE_CHECKING:  # the precise solver pulls in scipy.interpolate: load it only when used
@@ -153,7 +153,8 @@ def run_audit(board_path: str | Path, options: AuditOptions | None = None) -> Re
     board = read_board(board_path)
     selection = measuring_selection(setup)
     found, _rejects = find_sensors(board, selection)
-    sensors = tuple(sorted(measure(board, found, selection), key=lambda s: s.name))
+    sensors = tuple(sorted(measure(board, found, selection),
+                           key=lambda s: name_order(s.name)))
     metrics, broken = _without_unfollowed(
         sensors, solve_sensors(board, sensors, setup, opts) if opts.solve else {})
     extras = _precise_extras(board, sensors, setup) if opts.solve and opts.precise else None

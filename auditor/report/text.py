@@ -20,6 +20,7 @@ from rich.text import Text
 from auditor.report.model import DecidedFinding, Report, RuleInfo, SensorResult
 from auditor.report.text_precise import render_precise_sections
 from auditor.rules.finding import Severity
+from auditor.sensors.model import name_order
 
 ORDERS: tuple[str, ...] = ("weakest", "rank")
 _BAR_CELLS = 10
@@ -50,10 +51,12 @@ def ordered_sensors(sensors: tuple[SensorResult, ...], order: str) -> list[Senso
     unsolved pads (no metrics, nothing known) at the very top."""
     if order not in ORDERS:
         raise ValueError(f"unknown order {order!r}; choose one of: {', '.join(ORDERS)}")
-    by_rank = sorted(sensors, key=lambda r: (r.metrics is None, r.rank, r.sensor.name))
+    by_rank = sorted(sensors, key=lambda r: (r.metrics is None, r.rank,
+                                             name_order(r.sensor.name)))
     if order == "rank":
         return by_rank
-    return sorted(sensors, key=lambda r: (r.metrics is not None, -r.rank, r.sensor.name))
+    return sorted(sensors, key=lambda r: (r.metrics is not None, -r.rank,
+                                          name_order(r.sensor.name)))
 
 
 def _pf(value: float) -> str:

@@ -126,3 +126,17 @@ class Sensor:
         import math
 
         return 2.0 * math.sqrt(max(self.area_mm2, 0.0) / math.pi)
+
+
+def name_order(name: str) -> tuple[tuple[int, int | str], ...]:
+    """Sort key that puts ``TOUCH2#2`` before ``TOUCH2#10`` (numbers by value).
+
+    Examples
+    --------
+    >>> sorted(["B10", "B2", "A"], key=name_order)
+    ['A', 'B2', 'B10']
+    """
+    import re
+
+    return tuple((1, int(part)) if part.isdigit() else (0, part)
+                 for part in re.split(r"(\d+)", name) if part)

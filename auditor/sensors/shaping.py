@@ -33,7 +33,7 @@ from auditor.sensors.cues import (
     tokens,
     trailing_index,
 )
-from auditor.sensors.model import Sensor, SensorKind
+from auditor.sensors.model import Sensor, SensorKind, name_order
 from auditor.sensors.pieces import Piece
 from auditor.sensors.segments import grouped_by_layout
 from auditor.sensors.selection import SensorSelection, matches
@@ -58,7 +58,7 @@ def shaped_sensors(board: Board, sel: SensorSelection,
     sensors = _kinds(board, sel, candidates, sensors)
     sensors = grouped_by_layout(sensors, set())
     sensors = _ordered_groups(sensors)
-    return tuple(sorted(sensors, key=lambda s: s.name))
+    return tuple(sorted(sensors, key=lambda s: name_order(s.name)))
 
 
 def _base_name(board: Board, cand: Candidate) -> str:
