@@ -25,12 +25,13 @@ from auditor.report.model import PadMetrics, Report, RuleInfo, RunInfo, SensorRe
 from auditor.rules.context import RuleContext, RuleSettings, ThresholdValue
 from auditor.rules.profiles import Profile, load_profile
 from auditor.rules.registry import all_rules, run_rules
-from auditor.sensors import find_sensors, measure
+from auditor.sensors import find_sensors, mark_sense_neighbours, measure_each
 from auditor.sensors.model import Sensor, name_order
 from auditor.sensors.selection import SensorSelection
 
 if TYPE_CHECKING:  # the precise solver pulls in scipy.interpolate: load it only when used
     from auditor.field.precise.results import PreciseExtras
+    from auditor.pipeline_field import QuickSolves
 
 
 @dataclass(frozen=True)
@@ -99,14 +100,36 @@ def measuring_selection(setup: AuditSetup) -> SensorSelection:
 
 
 def solve_sensors(board: Board, sensors: tuple[Sensor, ...], setup: AuditSetup,
-                  options: AuditOptions) -> dict[str, PadMetrics]:
+                  options: AuditOptions, quick: QuickSolves | None = None,
+                  ) -> dict[str, PadMetrics]:
     """Field metrics per sensor name, from the quick (or, with ``precise``,
     the 3-D) solve; sensors the solver cannot map get no entry and are
-    reported ``unsolved`` (no number is made up)."""
+    reported ``unsolved`` (no number is made up). ``quick``: the quick
+    solves already started by :func:`_measured`."""
     from auditor.pipeline_field import solve_sensors as field_solve
 
     return field_solve(board, sensors, setup.config, precise=options.precise,
-                       progress=options.progress, thresholds=setup.thresholds)
+                       progress=options.progress, thresholds=setup.thresholds, quick=quick)
+
+
+def _measured(board: Board, found: tuple[Sensor, ...], selection: SensorSelection,
+              setup: AuditSetup, options: AuditOptions,
+              ) -> tuple[tuple[Sensor, ...], QuickSolves | None]:
+    """The found sensors measured and sorted by name, and (for a quick
+    audit) their quick solves, each queued as soon as its sensor is
+    measured so that solving overlaps measuring."""
+    quick = None
+    if options.solve and not options.precise:
+        from auditor.pipeline_field import QuickSolves
+
+        quick = QuickSolves(board, setup.config, setup.thresholds)
+    measured = []
+    for sensor in measure_each(board, found, selection):
+        measured.append(sensor)
+        if quick is not None:
+            quick.add(sensor)
+    sensors = tuple(sorted(mark_sense_neighbours(measured), key=lambda s: name_order(s.name)))
+    return sensors, quick
 
 
 def sense_nets(board: Board, sensors: tuple[Sensor, ...]) -> tuple[str, ...]:
@@ -153,10 +176,9 @@ def run_audit(board_path: str | Path, options: AuditOptions | None = None) -> Re
     board = read_board(board_path)
     selection = measuring_selection(setup)
     found, _rejects = find_sensors(board, selection)
-    sensors = tuple(sorted(measure(board, found, selection),
-                           key=lambda s: name_order(s.name)))
+    sensors, quick = _measured(board, found, selection, setup, opts)
     metrics, broken = _without_unfollowed(
-        sensors, solve_sensors(board, sensors, setup, opts) if opts.solve else {})
+        sensors, solve_sensors(board, sensors, setup, opts, quick) if opts.solve else {})
     extras = _precise_extras(board, sensors, setup) if opts.solve and opts.precise else None
     unsolved = {**_unsolved(sensors, metrics, opts), **broken} if opts.solve else {}
     return build_report(board, sensors, metrics, setup, extras, unsolved)

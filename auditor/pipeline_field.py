@@ -41,7 +41,7 @@ from typing import Literal
 from auditor.config import Config
 from auditor.errors import UsageError
 from auditor.field.api import PadSetup, PadSolve, solve_pad
-from auditor.field.batch import solve_pads
+from auditor.field.batch import PadBatch
 from auditor.field.pad_model import DEFAULT_GROUND_MARGIN_MM
 from auditor.model.board import Board
 from auditor.pipeline_stack import board_layers_from_touch, overlay_with_mask, touch_mask
@@ -253,25 +253,46 @@ class _InOrder:
                                len(self._sensors))
 
 
-def _solve_quick(board: Board, sensors: tuple[Sensor, ...], config: Config,
-                 limits: Mapping[str, float | int | bool],
-                 in_order: _InOrder) -> dict[str, PadMetrics]:
-    """Quick metrics of every self-capacitance sensor the disk model fits;
-    each distinct setup solved once (:func:`auditor.field.batch.solve_pads`:
-    over idle cores when there are some)."""
-    mapped = {s.name: pad_setup_for(s, board, config, limits) for s in sensors
-              if s.kind in SELF_KINDS and s.area_mm2 > 0 and not quick_unfit_reason(s)}
-    names: dict[PadSetup, list[str]] = {}
-    for name, field_input in mapped.items():
-        names.setdefault(field_input.setup, []).append(name)
+class QuickSolves:
+    """The quick solves of an audit, started while it is still measuring.
 
-    def solved(setup: PadSetup) -> None:
-        for name in names[setup]:
-            in_order.finish(name)
+    :meth:`add` maps each measured sensor the disk model fits to its pad
+    setup and queues the solve (:class:`auditor.field.batch.PadBatch`:
+    helper processes start on it at once when a core is idle); equal setups
+    are solved once. :meth:`metrics` waits for them all.
+    """
 
-    solves = solve_pads([m.setup for m in mapped.values()], on_solved=solved)
-    return {name: _quick_metrics(field_input, solve)
-            for (name, field_input), solve in zip(mapped.items(), solves, strict=True)}
+    def __init__(self, board: Board, config: Config,
+                 thresholds: Mapping[str, float | int | bool] | None = None,
+                 workers: int | None = None) -> None:
+        self._board, self._config, self._limits = board, config, thresholds or {}
+        self._batch = PadBatch(workers)
+        self._mapped: dict[str, FieldInput] = {}
+
+    def add(self, sensor: Sensor) -> None:
+        """Map and queue one sensor (ignored unless the quick model fits it)."""
+        if (sensor.kind not in SELF_KINDS or sensor.area_mm2 <= 0 or sensor.name in self._mapped
+                or quick_unfit_reason(sensor)):
+            return
+        mapped = pad_setup_for(sensor, self._board, self._config, self._limits)
+        self._mapped[sensor.name] = mapped
+        self._batch.add(mapped.setup)
+
+    def metrics(self, finished: Callable[[str], None] | None = None) -> dict[str, PadMetrics]:
+        """Metrics of every sensor added, by name; ``finished`` is called
+        with each sensor's name as its solve is done."""
+        names: dict[PadSetup, list[str]] = {}
+        for name, field_input in self._mapped.items():
+            names.setdefault(field_input.setup, []).append(name)
+
+        def solved(setup: PadSetup) -> None:
+            for name in names[setup]:
+                if finished is not None:
+                    finished(name)
+
+        solves = self._batch.results(solved)
+        return {name: _quick_metrics(field_input, solves[field_input.setup])
+                for name, field_input in self._mapped.items()}
 
 
 def _precise_or_quick(sensor: Sensor, board: Board, config: Config, mapped: FieldInput,
@@ -330,7 +351,7 @@ def unsolved_reasons(sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetri
 def solve_sensors(board: Board, sensors: tuple[Sensor, ...], config: Config, *,
                   precise: bool = False, progress: Progress | None = None,
                   thresholds: Mapping[str, float | int | bool] | None = None,
-                  ) -> dict[str, PadMetrics]:
+                  quick: QuickSolves | None = None) -> dict[str, PadMetrics]:
     """Field metrics per sensor name (``method`` "quick" or "precise").
 
     Self-capacitance electrodes (button, slider, wheel, proximity) are
@@ -339,12 +360,18 @@ def solve_sensors(board: Board, sensors: tuple[Sensor, ...], config: Config, *,
     (:func:`quick_unfit_reason`), or a sensor that cannot be mapped, gets no
     entry (the report shows it unsolved; :func:`unsolved_reasons` says why)
     — nothing is made up. The quick solves run first, each distinct setup
-    once. ``progress`` is called as ``progress(sensor_name, done, total)``,
-    in sensor order.
+    once; ``quick`` holds them when they were started while measuring.
+    ``progress`` is called as ``progress(sensor_name, done, total)``, in
+    sensor order.
     """
     limits = thresholds or {}
     in_order = _InOrder(sensors, progress)
-    out = {} if precise else _solve_quick(board, sensors, config, limits, in_order)
+    out: dict[str, PadMetrics] = {}
+    if not precise:
+        quick = quick or QuickSolves(board, config, limits)
+        for sensor in sensors:
+            quick.add(sensor)  # those added while measuring are not added again
+        out = quick.metrics(in_order.finish)
     for sensor in sensors:
         if sensor.name in out:
             pass

@@ -18,11 +18,13 @@ from __future__ import annotations
 
 import numpy as np
 import shapely
+from shapely.geometry.base import BaseGeometry
 
 from auditor.field.api import TraceRunSpec
 from auditor.model.board import Board
 from auditor.model.items import Track
 from auditor.sensors.model import Sensor
+from auditor.sensors.spatial import items_in_box
 
 SAMPLE_STEP_MM = 1.0
 COPLANAR_REACH_MM = 3.0
@@ -50,19 +52,35 @@ def _samples(tracks: list[Track]) -> np.ndarray:
     return np.array(points, dtype=float).reshape(-1, 2)
 
 
+def _ground_near(board: Board, layer: str, ground: str, samples: np.ndarray,
+                 margin_mm: float) -> list[BaseGeometry]:
+    """The ground net's copper on ``layer`` within ``margin_mm`` of the
+    samples' box, item by item and cut to that box.
+
+    No union: a distance to a union is the least distance to its parts, and
+    a point lies in the union when it lies in a part (up to points on a
+    boundary two parts share, which the sampling never relies on). Uniting
+    the demo's two hatched pours alone took 0.23 s.
+    """
+    (x0, y0), (x1, y1) = samples.min(axis=0) - margin_mm, samples.max(axis=0) + margin_mm
+    items = items_in_box(board, layer, (x0, y0, x1, y1), lambda it: it.net == ground)
+    parts = [shapely.clip_by_rect(it.geometry, x0, y0, x1, y1) for it in items]
+    return [part for part in parts if not part.is_empty]
+
+
 def _coplanar_gap(board: Board, layer: str, ground: str, samples: np.ndarray,
                   width_mm: float) -> float | None:
-    copper = board.copper_of_net(layer, ground)
-    if copper.is_empty or samples.size == 0:
+    if samples.size == 0:
         return None
     # Only copper within twice the reach of a sample can decide the result
     # (a median of two distances is within reach only if both are within
     # twice it), so clip the pour there: the same gap, far fewer vertices.
-    margin = 2.0 * COPLANAR_REACH_MM + width_mm
-    (x0, y0), (x1, y1) = samples.min(axis=0) - margin, samples.max(axis=0) + margin
-    near = shapely.clip_by_rect(copper, x0, y0, x1, y1)
-    distance = shapely.distance(shapely.points(samples), near) - 0.5 * width_mm
-    gap = float(np.median(distance))
+    near = _ground_near(board, layer, ground, samples, 2.0 * COPLANAR_REACH_MM + width_mm)
+    if not near:
+        return None
+    points = shapely.points(samples)
+    distance = np.min([shapely.distance(points, part) for part in near], axis=0)
+    gap = float(np.median(distance - 0.5 * width_mm))
     return round(gap, 2 if gap < 1.0 else 1) if 0.0 < gap <= COPLANAR_REACH_MM else None
 
 
@@ -80,11 +98,12 @@ def _plane_height(board: Board, layer: str, ground: str, samples: np.ndarray) ->
     for other in board.copper_layers:
         if other == layer or samples.size == 0:
             continue
-        copper = board.copper_of_net(other, ground)
-        if copper.is_empty:
+        parts = _ground_near(board, other, ground, samples, 0.1)
+        if not parts:
             continue
-        cover = float(np.mean(shapely.contains_xy(copper, samples[:, 0], samples[:, 1])))
-        if cover >= PLANE_MIN_COVER:
+        inside = np.any([shapely.contains_xy(part, samples[:, 0], samples[:, 1])
+                         for part in parts], axis=0)
+        if float(np.mean(inside)) >= PLANE_MIN_COVER:
             height = dielectric_between_mm(board, layer, other)
             best = height if best is None else min(best, height)
     return None if best is None else round(best, 3)

@@ -1,8 +1,9 @@
 """Entry point and command dispatch.
 
 Each sub-command lives in its own module ``auditor.cli.cmd_<name>`` exposing
-``register(subparsers)`` and ``run(args) -> int``. Modules are imported only
-when listed in :data:`COMMANDS` and present, so start-up stays light.
+``register(subparsers)`` and ``run(args) -> int``. Only the module of the
+command being run is imported (all of them for ``--help`` or a usage
+error), so start-up stays light.
 
 Exit codes (the contract CI and git hooks rely on):
 
@@ -44,9 +45,24 @@ class _Parser(argparse.ArgumentParser):
         raise SystemExit(EXIT_BAD_INPUT)
 
 
-def _load_commands() -> dict[str, ModuleType]:
+def _chosen_command(argv: Sequence[str]) -> str | None:
+    """The sub-command named on the command line, if it is a known one.
+
+    The options before it (``--debug``; ``--version`` and ``--help`` stop
+    at once) take no value, so it is the first word not starting with "-".
+    """
+    for word in argv:
+        if not word.startswith("-"):
+            return word if word in COMMANDS else None
+    return None
+
+
+def _load_commands(only: str | None = None) -> dict[str, ModuleType]:
+    """The command modules: only ``only``'s when it is given (each pulls in
+    its own stages, and importing all of them would cost a tenth of a
+    second of every run), else all, for ``--help`` and for usage errors."""
     modules: dict[str, ModuleType] = {}
-    for name in COMMANDS:
+    for name in (only,) if only else COMMANDS:
         try:
             modules[name] = importlib.import_module(f"auditor.cli.cmd_{name}")
         except ModuleNotFoundError as exc:
@@ -72,9 +88,10 @@ def build_parser(modules: dict[str, ModuleType]) -> argparse.ArgumentParser:
 
 def main(argv: Sequence[str] | None = None) -> int:
     """Run padaudit; returns the process exit code."""
-    modules = _load_commands()
+    words = list(sys.argv[1:] if argv is None else argv)
+    modules = _load_commands(_chosen_command(words))
     parser = build_parser(modules)
-    args = parser.parse_args(argv)
+    args = parser.parse_args(words)
     if args.command is None:
         parser.print_help()
         return EXIT_BAD_INPUT

@@ -17,14 +17,10 @@ from typing import TextIO
 
 from auditor.cli.audit_runner import AuditFn, auditor_for, shown_as
 from auditor.cli.colour import COLOUR_CHOICES, use_colour
-from auditor.decide.baseline import apply_baseline, load_baseline, write_baseline
 from auditor.errors import UsageError
 from auditor.report.cautions import with_cautions
-from auditor.report.diff import compare_reports
-from auditor.report.diff_render import render_diff
 from auditor.report.model import Report
 from auditor.report.render import FORMATS, render
-from auditor.report.svg import write_svg
 from auditor.report.text import ORDERS
 
 
@@ -65,6 +61,10 @@ def _write_file(path: str, text: str) -> None:
 
 
 def _gated(report: Report, args: argparse.Namespace) -> Report:
+    # Imported here, as the picture and the diff below: most runs use none
+    # of them, and every import costs start-up time.
+    from auditor.decide.baseline import apply_baseline, load_baseline, write_baseline
+
     if getattr(args, "write_baseline", None):
         try:
             written = write_baseline(args.write_baseline, report)
@@ -89,6 +89,8 @@ def _with_board(report: Report) -> Report:
 def _against(report: Report, args: argparse.Namespace, audit: AuditFn | None,
              stdout: TextIO, colour: bool) -> int:
     from auditor.gitrev import board_at, locate
+    from auditor.report.diff import compare_reports
+    from auditor.report.diff_render import render_diff
 
     audit = audit or auditor_for(args)
     board = report.info.board_path
@@ -124,6 +126,8 @@ def emit(report: Report, args: argparse.Namespace, *, audit: AuditFn | None = No
         check_board_at(report.info.board_path, args.against)
     report = _gated(with_cautions(report), args)
     if getattr(args, "svg", None):
+        from auditor.report.svg import write_svg
+
         try:
             write_svg(_with_board(report), args.svg)
         except OSError as exc:

@@ -37,6 +37,7 @@ from auditor.field.pad_model import (
     field_matrices,
     finger_sheet,
     ground_sheets,
+    left_out_films,
     plane_sheets,
     reduced_network,
 )
@@ -84,6 +85,11 @@ def _notes(setup: PadSetup, has_ground: bool) -> list[str]:
     if setup.plane_depth_mm is not None and 0.0 < setup.plane_fill < 1.0:
         notes.append(f"hatched plane (fill {setup.plane_fill:g}) as concentric rings of "
                      f"pitch {setup.plane_hatch_pitch_mm:g} mm")
+    films = [setup.board_layers[i] for i in left_out_films(setup)]
+    if films:
+        thin = ", ".join(f"{1000 * f.thickness_mm:.0f} µm" for f in films)
+        notes.append(f"thin film(s) far behind the pad left out ({thin}; Cp changes "
+                     "by about 0.3 % at most)")
     if setup.finger_diameter_mm is not None:
         notes.append(f"finger: {setup.finger_diameter_mm:g} mm disk, floating, "
                      f"{setup.body_to_earth_pf:g} pF body to earth")

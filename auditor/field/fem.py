@@ -79,6 +79,8 @@ def assemble(mesh: TensorMesh, eps_cells: FloatArray,
     """
     ax, mx = _one_d(mesh.x, mesh.axisymmetric)
     ay, my = _one_d(mesh.y, False)
+    if bool(np.all(eps_cells == eps_cells[:1])):
+        return _assemble_layered(mesh, (ax, mx), (ay, my), eps_cells[0], boundary_diagonal)
     local = (np.einsum("ipk,jql->ijpqkl", ax, my) + np.einsum("ipk,jql->ijpqkl", mx, ay))
     local *= eps_cells[:, :, None, None, None, None]
     nex, ney = eps_cells.shape
@@ -96,6 +98,37 @@ def assemble(mesh: TensorMesh, eps_cells: FloatArray,
         rows, cols = np.concatenate((rows, diagonal)), np.concatenate((cols, diagonal))
         data = np.concatenate((data, boundary_diagonal))
     return sp.csr_matrix((data, (rows, cols)), shape=(n, n))
+
+
+def _one_d_global(element: FloatArray, weights: FloatArray | None = None) -> sp.csr_matrix:
+    """A 1-D global matrix from per-element 2x2 blocks (times per-element weights)."""
+    blocks = element if weights is None else element * weights[:, None, None]
+    n = len(blocks) + 1
+    main = np.zeros(n)
+    main[:-1] += blocks[:, 0, 0]
+    main[1:] += blocks[:, 1, 1]
+    return sp.diags([blocks[:, 1, 0], main, blocks[:, 0, 1]], [-1, 0, 1], format="csr")
+
+
+def _assemble_layered(mesh: TensorMesh, x_parts: tuple[FloatArray, FloatArray],
+                      y_parts: tuple[FloatArray, FloatArray], eps_rows: FloatArray,
+                      boundary_diagonal: FloatArray | None) -> sp.csr_matrix:
+    """The stiffness when eps varies along y only (layered media: every
+    model here), as Kronecker products of 1-D matrices,
+
+        K = A_x (x) M_y(eps) + M_x (x) A_y(eps),
+
+    the same matrix as the element-by-element sum, in a tenth of the time
+    (the node numbering ix * ny + iy is Kronecker order).
+    """
+    (ax, mx), (ay, my) = x_parts, y_parts
+    stiffness = (sp.kron(_one_d_global(ax), _one_d_global(my, eps_rows), format="csr")
+                 + sp.kron(_one_d_global(mx), _one_d_global(ay, eps_rows), format="csr"))
+    if boundary_diagonal is not None:
+        stiffness = stiffness + sp.diags(boundary_diagonal, format="csr")
+    out: sp.csr_matrix = stiffness.tocsr()
+    out.sort_indices()
+    return out
 
 
 def edge_lumped(mesh: TensorMesh, side: str, alpha: FloatArray) -> FloatArray:
@@ -211,89 +244,126 @@ def capacitance_matrix(stiffness: sp.csr_matrix, conductor_nodes: Sequence[Index
     return base
 
 
-#: Largest extra conductor (in nodes) handled by the capacitance-matrix
-#: update; above it the system with the extra conductor is factorised on its
-#: own. The update costs one solve per extra node, and SuperLU's solve with
-#: many right-hand sides costs about as much as a factorisation once there
-#: are some 8-10 of them (measured on the demo pads, bench_demo: a 10 mm
-#: finger has 19 nodes at the default mesh; two factorisations took 25 %
-#: less CPU).
-UPDATE_MAX_NODES = 8
-#: Meshes from this many nodes on are factorised in nested-dissection order,
-#: and only they take a second factorisation for a large extra conductor;
-#: on smaller ones (the Richardson coarse level, a plain round pad) SuperLU's
-#: own ordering and the update were faster (measured: 42 against 50 ms for
-#: the bench_field round pad).
-LARGE_GRID_NODES = 8000
-
-
 def capacitance_pair(stiffness: sp.csr_matrix, conductor_nodes: Sequence[IndexArray],
                      extra_nodes: IndexArray | None, grid_shape: tuple[int, int] | None = None,
                      ) -> tuple[FloatArray, FloatArray | None]:
     """Maxwell matrices without and with one extra conductor, on one mesh.
 
     Both are complete solves: the first with the extra conductor's nodes
-    free (it is absent), the second with them fixed (a conductor). On a
-    small mesh, or for a small extra conductor (at most
-    :data:`UPDATE_MAX_NODES` nodes), the second reuses the first's LU: the extra nodes stay unknowns of the
-    factorised system and their potential is imposed through their
-    reactions lambda, found from the small dense system
-    (E^T K^-1 E) lambda = u_F - E^T K^-1 r (a capacitance-matrix update,
-    common practice in domain decomposition). Otherwise the system with the
-    extra conductor is factorised on its own. Either way the result equals a
-    separate solve with those nodes fixed, to rounding.
+    free (it is absent), the second with them fixed (a conductor). One LU
+    factorisation serves both: the free nodes are eliminated with the extra
+    conductor's nodes last, so the trailing block of the factors is the
+    Schur complement S of the rest (:func:`_trailing_schur`), and imposing a
+    potential t on those nodes is one more solve with the right-hand side
+    S (t - y0) in their rows, y0 being what they take when free (a
+    capacitance-matrix update, common practice in domain decomposition).
+    The result equals a separate solve with those nodes fixed, to rounding
+    (checked against that in the tests). Should SuperLU reorder rows or
+    columns despite the natural order asked for, the system with the extra
+    conductor is factorised on its own instead.
 
-    ``grid_shape`` (the tensor mesh's node counts) selects, for a mesh of
-    at least :data:`LARGE_GRID_NODES`, the :func:`nested_dissection`
-    elimination order and the second factorisation; otherwise SuperLU
-    orders and the update is used.
+    ``grid_shape`` (the tensor mesh's node counts) selects the
+    :func:`nested_dissection` elimination order; without it SuperLU orders
+    (and a pair is solved with two factorisations).
     """
-    if grid_shape is not None and grid_shape[0] * grid_shape[1] < LARGE_GRID_NODES:
-        grid_shape = None
-    if (extra_nodes is not None and grid_shape is not None
-            and len(extra_nodes) > UPDATE_MAX_NODES):
-        base, _ = capacitance_pair(stiffness, conductor_nodes, None, grid_shape)
-        if np.isin(extra_nodes, np.concatenate([*conductor_nodes, extra_nodes[:0]])).any():
-            raise ValueError("the extra conductor touches another conductor")
-        with_extra, _ = capacitance_pair(stiffness, (*conductor_nodes, extra_nodes), None,
-                                         grid_shape)
-        return base, with_extra
-    n = stiffness.shape[0]
-    boundary = np.zeros((n, len(conductor_nodes)))
+    if extra_nodes is None:
+        return _maxwell(stiffness, conductor_nodes, grid_shape), None
+    if np.isin(extra_nodes, np.concatenate(conductor_nodes)).any():
+        raise ValueError("the extra conductor touches another conductor")
+    paired = _pair_one_factorisation(stiffness, conductor_nodes, extra_nodes, grid_shape)
+    if paired is not None:
+        return paired
+    return (_maxwell(stiffness, conductor_nodes, grid_shape),
+            _maxwell(stiffness, (*conductor_nodes, extra_nodes), grid_shape))
+
+
+def _unit_problems(stiffness: sp.csr_matrix, conductor_nodes: Sequence[IndexArray]
+                   ) -> tuple[FloatArray, IndexArray]:
+    """Each conductor's unit boundary values (one column each) and the free nodes."""
+    boundary = np.zeros((stiffness.shape[0], len(conductor_nodes)))
     for k, nodes in enumerate(conductor_nodes):
         boundary[nodes, k] = 1.0
-    free = np.flatnonzero(boundary.sum(axis=1) == 0)
-    if extra_nodes is not None and boundary[extra_nodes].any():
-        raise ValueError("the extra conductor touches another conductor")
+    return boundary, np.flatnonzero(boundary.sum(axis=1) == 0)
+
+
+#: Meshes from this many nodes on are factorised in nested-dissection order
+#: when solved for one matrix; on smaller ones (the Richardson coarse level, a
+#: plain round pad) SuperLU's own ordering was faster (measured: 42 against
+#: 50 ms for the bench_field round pad).
+LARGE_GRID_NODES = 8000
+
+
+def _maxwell(stiffness: sp.csr_matrix, conductor_nodes: Sequence[IndexArray],
+             grid_shape: tuple[int, int] | None) -> FloatArray:
+    if grid_shape is not None and grid_shape[0] * grid_shape[1] < LARGE_GRID_NODES:
+        grid_shape = None
+    boundary, free = _unit_problems(stiffness, conductor_nodes)
     k_free_rows, lu = _factor(stiffness, free, grid_shape)
-    solved = lu.solve(np.asfortranarray(-(k_free_rows @ boundary)))
     potentials = boundary.copy()
-    potentials[free] = solved
-    base = _energy_matrix(stiffness, potentials)
-    if extra_nodes is None:
-        return base, None
-    extended = _with_extra_conductor(lu, free, boundary, solved, extra_nodes)
-    return base, _energy_matrix(stiffness, extended)
+    potentials[free] = lu.solve(np.asfortranarray(-(k_free_rows @ boundary)))
+    return _energy_matrix(stiffness, potentials)
 
 
-def _with_extra_conductor(lu: Any, free: IndexArray, boundary: FloatArray,
-                          solved: FloatArray, extra_nodes: IndexArray) -> FloatArray:
-    """Potentials of every conductor's unit problem with the extra one added."""
-    n, count = boundary.shape
-    position = np.full(n, -1)
+def _pair_one_factorisation(stiffness: sp.csr_matrix, conductor_nodes: Sequence[IndexArray],
+                            extra_nodes: IndexArray, grid_shape: tuple[int, int] | None,
+                            ) -> tuple[FloatArray, FloatArray] | None:
+    """Both matrices of :func:`capacitance_pair` from one factorisation, or
+    None when SuperLU did not keep the order asked for."""
+    if grid_shape is None:
+        return None
+    boundary, free = _unit_problems(stiffness, conductor_nodes)
+    position = np.full(stiffness.shape[0], -1)
     position[free] = np.arange(len(free))
-    local = position[extra_nodes]
-    injection = np.zeros((len(free), len(local)), order="F")
-    injection[local, np.arange(len(local))] = 1.0
-    response = lu.solve(injection)  # K^-1 E
-    targets = np.zeros((len(local), count + 1))
-    targets[:, -1] = 1.0  # the extra conductor's own unit problem
-    current = np.concatenate((solved, np.zeros((len(free), 1))), axis=1)
-    reactions = np.linalg.solve(response[local], targets - current[local])
-    extended = np.concatenate((boundary, np.zeros((n, 1))), axis=1)
-    extended[free] = current + response @ reactions
-    extended[extra_nodes] = targets
-    return extended
+    ordered = position[nested_dissection(grid_shape)]
+    ordered = ordered[ordered >= 0]
+    extra_local = position[extra_nodes]
+    order = np.concatenate((ordered[~np.isin(ordered, extra_local)], extra_local))
+    k_free_rows = stiffness[free]
+    permuted = k_free_rows[:, free].tocsc()[order][:, order].tocsc()
+    lu = spla.splu(permuted, permc_spec="NATURAL", diag_pivot_thresh=0.0,
+                   options={"SymmetricMode": True})
+    identity = np.arange(len(free))
+    if not (np.array_equal(lu.perm_r, identity) and np.array_equal(lu.perm_c, identity)):
+        return None
+    rhs = np.asfortranarray(-(k_free_rows @ boundary)[order])
+    base = _potentials(boundary, free, order, lu.solve(rhs))
+    schur = _trailing_schur(lu, len(extra_nodes))
+    with_extra = _extra_fixed(lu, rhs, schur, len(extra_nodes))
+    extended = np.concatenate((boundary, np.zeros((len(boundary), 1))), axis=1)
+    extended = _potentials(extended, free, order, with_extra)
+    return _energy_matrix(stiffness, base), _energy_matrix(stiffness, extended)
+
+
+def _potentials(boundary: FloatArray, free: IndexArray, order: IndexArray,
+                solved: FloatArray) -> FloatArray:
+    """Node potentials: the boundary values, with the free nodes' solution
+    (given in elimination order) put back in the mesh's numbering."""
+    out = boundary.copy()
+    out[free[order]] = solved
+    return out
+
+
+def _trailing_schur(lu: Any, count: int) -> FloatArray:
+    """The Schur complement of the leading block in the factorised matrix:
+    the product of the factors' trailing ``count`` x ``count`` blocks."""
+    lower, upper = lu.L.tocsc(), lu.U.tocsc()
+    out: FloatArray = (lower[-count:, -count:] @ upper[-count:, -count:]).toarray()
+    return out
+
+
+def _extra_fixed(lu: Any, rhs: FloatArray, schur: FloatArray, count: int) -> FloatArray:
+    """Solutions (in elimination order, the extra nodes last) of every
+    conductor's unit problem with the extra nodes held at 0, and of the
+    extra conductor's own unit problem (its nodes at 1, the rest at 0)."""
+    problems = np.zeros((rhs.shape[0], rhs.shape[1] + 1), order="F")
+    problems[:-count, :-1] = rhs[:-count]
+    targets = np.zeros((count, problems.shape[1]))
+    targets[:, -1] = 1.0
+    free_response = lu.solve(problems)  # extra nodes free: y0 = -S^-1 A21 A11^-1 b
+    problems[-count:] = schur @ (targets - free_response[-count:])
+    solved: FloatArray = lu.solve(problems)
+    solved[-count:] = targets  # exact values instead of their rounded copies
+    return solved
 
 
 def cell_centres(mesh: TensorMesh) -> tuple[FloatArray, FloatArray]:

@@ -149,6 +149,27 @@ def clean(geom: BaseGeometry) -> BaseGeometry:
     return shapely.union_all(parts) if parts else Polygon()
 
 
+def union_of(parts: Sequence[BaseGeometry]) -> BaseGeometry:
+    """The union of valid polygonal ``parts``, without the union when they
+    are apart.
+
+    A zone's fill pieces on one layer never meet (each is one connected
+    piece of copper), and uniting them, or two zones' fills, costs time in
+    proportion to their many hatch holes (0.1 s on the demo board). When no
+    two parts even touch, the multi-polygon of their pieces is already
+    valid and has the same copper; otherwise they are united.
+    """
+    pieces = [p for part in parts for p in getattr(part, "geoms", [part])
+              if p.geom_type == "Polygon" and not p.is_empty]
+    if len(pieces) <= 1:
+        return pieces[0] if pieces else Polygon()
+    tree = shapely.STRtree(pieces)
+    left, right = tree.query(pieces, predicate="intersects")
+    if bool(np.all(left == right)):
+        return shapely.MultiPolygon(pieces)
+    return shapely.union_all(pieces)
+
+
 def stroke(points: Coords, width: float, quad_segs: int = QUAD_SEGS) -> BaseGeometry:
     """Copper of a polyline drawn with a round pen of ``width`` (round caps)."""
     half = max(width, 0.0) / 2

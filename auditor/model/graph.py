@@ -18,7 +18,6 @@ import numpy as np
 import shapely
 from scipy.sparse import coo_matrix, csr_matrix
 from scipy.sparse.csgraph import dijkstra
-from scipy.spatial import cKDTree
 from shapely.geometry.base import BaseGeometry
 
 from auditor.model.items import Point, Track, Via
@@ -30,7 +29,7 @@ JOIN_MM = 1e-3
 
 NodeKey = tuple[str, int, int]
 _Edge = Callable[[int, int, float], None]
-_ByLayer = dict[str, tuple[list[int], cKDTree]]
+_ByLayer = dict[str, tuple[list[int], shapely.STRtree]]
 
 
 def _key(layer: str, x: float, y: float) -> NodeKey:
@@ -87,19 +86,27 @@ class TrackGraph:
             self._points.append((layer, p.x, p.y))
         return found
 
-    def _nodes_by_layer(self) -> dict[str, tuple[list[int], cKDTree]]:
+    def _nodes_by_layer(self) -> _ByLayer:
         grouped: dict[str, list[int]] = {}
         for i, (layer, _, _) in enumerate(self._points):
             grouped.setdefault(layer, []).append(i)
-        return {layer: (ids, cKDTree([self._points[i][1:] for i in ids]))
+        # shapely's tree, not scipy.spatial's: importing scipy.spatial costs
+        # about 0.1 s of every run, and these are a few points per net.
+        return {layer: (ids, shapely.STRtree(shapely.points([self._points[i][1:] for i in ids])))
                 for layer, ids in grouped.items()}
+
+    @staticmethod
+    def _within(tree: shapely.STRtree, x: float, y: float, radius: float) -> list[int]:
+        """Indexes of the tree's points at most ``radius`` from (x, y), ascending."""
+        found = tree.query(shapely.Point(x, y), predicate="dwithin", distance=radius)
+        return sorted(int(k) for k in found)
 
     def _join_via_pads(self, edge: _Edge, by_layer: _ByLayer) -> None:
         for via in self.vias:
             for layer in via.layers:
                 ids, tree = by_layer[layer]
                 centre = self._index[_key(layer, via.x_mm, via.y_mm)]
-                for k in tree.query_ball_point((via.x_mm, via.y_mm), via.diameter_mm / 2):
+                for k in self._within(tree, via.x_mm, via.y_mm, via.diameter_mm / 2):
                     i = ids[k]
                     if i != centre:
                         _, x, y = self._points[i]
@@ -114,7 +121,7 @@ class TrackGraph:
             b = self._index[_key(tr.layer, tr.end.x, tr.end.y)]
             dx, dy = tr.end.x - tr.start.x, tr.end.y - tr.start.y
             centre = ((tr.start.x + tr.end.x) / 2, (tr.start.y + tr.end.y) / 2)
-            for k in tree.query_ball_point(centre, tr.length_mm / 2 + JOIN_MM):
+            for k in self._within(tree, *centre, tr.length_mm / 2 + JOIN_MM):
                 i = ids[k]
                 if i in (a, b):
                     continue

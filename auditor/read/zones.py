@@ -11,7 +11,6 @@ at zone level is only the outline's display style; hatched copper is
 
 from __future__ import annotations
 
-import shapely
 from shapely.geometry import Polygon
 from shapely.geometry.base import BaseGeometry
 
@@ -120,7 +119,7 @@ def _fills(node: Node, ctx: ReadContext, layers: tuple[str, ...],
 
 
 def _union(parts: list[BaseGeometry]) -> BaseGeometry:
-    return parts[0] if len(parts) == 1 else shapely.union_all(parts)
+    return parts[0] if len(parts) == 1 else geo.union_of(parts)
 
 
 def _flag_no(node: Node, key: str) -> bool:

@@ -7,26 +7,37 @@ lives in :mod:`auditor.report.svg`.
 
 from __future__ import annotations
 
+import importlib
 from collections.abc import Callable
 from typing import TextIO
 
-from auditor.report.as_json import render_json
-from auditor.report.junit import render_junit
-from auditor.report.markdown import render_markdown
 from auditor.report.model import Report
-from auditor.report.sarif import render_sarif
-from auditor.report.text import ORDERS, render_text
+from auditor.report.text import ORDERS
 
 Backend = Callable[[Report, TextIO, bool, str], None]
 
-BACKENDS: dict[str, Backend] = {
-    "text": lambda r, s, colour, order: render_text(r, s, colour, order=order),
-    "json": lambda r, s, colour, order: render_json(r, s),
-    "sarif": lambda r, s, colour, order: render_sarif(r, s),
-    "junit": lambda r, s, colour, order: render_junit(r, s),
-    "markdown": lambda r, s, colour, order: render_markdown(r, s, order=order),
+#: Format name -> (module, function); a back-end is imported only when used
+#: (a run writes one format; importing all would slow every start).
+_BACKENDS: dict[str, tuple[str, str]] = {
+    "text": ("auditor.report.text", "render_text"),
+    "json": ("auditor.report.as_json", "render_json"),
+    "sarif": ("auditor.report.sarif", "render_sarif"),
+    "junit": ("auditor.report.junit", "render_junit"),
+    "markdown": ("auditor.report.markdown", "render_markdown"),
 }
-FORMATS: tuple[str, ...] = tuple(BACKENDS)
+#: Back-ends that take the electrode order.
+_ORDERED = frozenset({"text", "markdown"})
+FORMATS: tuple[str, ...] = tuple(_BACKENDS)
+
+
+def _backend(fmt: str) -> Backend:
+    module, name = _BACKENDS[fmt]
+    function = getattr(importlib.import_module(module), name)
+    if fmt == "text":
+        return lambda r, s, colour, order: function(r, s, colour, order=order)
+    if fmt in _ORDERED:
+        return lambda r, s, colour, order: function(r, s, order=order)
+    return lambda r, s, colour, order: function(r, s)
 
 
 def render(report: Report, fmt: str, stream: TextIO, colour: bool = False, *,
@@ -47,8 +58,8 @@ def render(report: Report, fmt: str, stream: TextIO, colour: bool = False, *,
     ValueError
         For an unknown format or order, listing the valid choices.
     """
-    if fmt not in BACKENDS:
+    if fmt not in _BACKENDS:
         raise ValueError(f"unknown format {fmt!r}; choose one of: {', '.join(FORMATS)}")
     if order not in ORDERS:
         raise ValueError(f"unknown order {order!r}; choose one of: {', '.join(ORDERS)}")
-    BACKENDS[fmt](report, stream, colour, order)
+    _backend(fmt)(report, stream, colour, order)

@@ -6,8 +6,8 @@
 """
 
 from auditor.sensors.find import Rejected, find_sensors, ground_net
-from auditor.sensors.measure import measure
+from auditor.sensors.measure import mark_sense_neighbours, measure, measure_each
 from auditor.sensors.selection import SensorSelection, selection_from_mapping
 
-__all__ = ["Rejected", "SensorSelection", "find_sensors", "ground_net", "measure",
-           "selection_from_mapping"]
+__all__ = ["Rejected", "SensorSelection", "find_sensors", "ground_net", "mark_sense_neighbours",
+           "measure", "measure_each", "selection_from_mapping"]

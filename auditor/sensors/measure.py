@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Iterator, Sequence
 from dataclasses import replace
 
 from auditor.model.board import Board
@@ -22,15 +22,30 @@ def measure(board: Board, sensors: Sequence[Sensor],
     --------
     ``measure(board, find_sensors(board)[0])``
     """
+    return mark_sense_neighbours(list(measure_each(board, sensors, selection)))
+
+
+def measure_each(board: Board, sensors: Sequence[Sensor],
+                 selection: SensorSelection | None = None) -> Iterator[Sensor]:
+    """Each sensor with ``path`` and ``surroundings`` measured, as soon as it is.
+
+    What depends on all of them (which neighbours are other sense nets) is
+    left to :func:`mark_sense_neighbours`; :func:`measure` does both. The
+    audit starts each pad's field solve while the next is being measured.
+    """
     sel = selection or SensorSelection()
     ground = ground_net(board, sel)
     ground_area = device_ground_area(board, ground)
-    out = []
     for sensor in sensors:
         path = sense_path(board, sensor, sensors, sel, ground)
         around = surroundings_of(board, sensor, sensors, sel, ground, ground_area)
-        out.append(replace(sensor, path=path, surroundings=around))
-    return tuple(_with_sense_neighbours(out))
+        yield replace(sensor, path=path, surroundings=around)
+
+
+def mark_sense_neighbours(sensors: Sequence[Sensor]) -> tuple[Sensor, ...]:
+    """Mark the neighbours of each sense path that are other electrodes'
+    nets or sense paths."""
+    return tuple(_with_sense_neighbours(list(sensors)))
 
 
 def _with_sense_neighbours(sensors: list[Sensor]) -> list[Sensor]:

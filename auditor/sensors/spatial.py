@@ -17,9 +17,9 @@ import shapely
 from shapely import STRtree
 from shapely.geometry import MultiPolygon, Polygon
 from shapely.geometry.base import BaseGeometry
-from shapely.ops import unary_union
 
 from auditor.model.board import Board, CopperItem
+from auditor.model.geometry import union_of
 
 Bounds = tuple[float, float, float, float]
 
@@ -185,7 +185,7 @@ def net_copper_area(board: Board, net: str) -> float:
     for layer in board.copper_layers:
         fills = [f.geometry for z in board.zones if z.net == net and not z.is_rule_area
                  for f in z.fills if f.layer == layer]
-        fill = fills[0] if len(fills) == 1 else unary_union(fills)
+        fill = fills[0] if len(fills) == 1 else union_of(fills)
         total += float(fill.area)
         pieces, tree = tiled(board, layer)
         for item in board.items_on(layer):

@@ -159,3 +159,23 @@ def test_progress_is_reported(boards) -> None:  # type: ignore[no-untyped-def]
     seen: list[tuple[str, int, int]] = []
     solve_sensors(board, sensors, config, progress=lambda *a: seen.append(a))
     assert seen == [(s.name, i + 1, len(sensors)) for i, s in enumerate(sensors)]
+
+
+def test_solves_started_while_measuring_equal_solves_after(boards) -> None:  # type: ignore[no-untyped-def]
+    # The audit queues each pad's solve as soon as its sensor is measured
+    # (before the neighbour marks of all sensors are known); the numbers
+    # must be exactly those of solving the finished sensors (common
+    # practice, no source: the same computation in another order).
+    from auditor.pipeline import _measured
+
+    board, sensors, config = boards["base"]
+    setup = resolve_setup(Path(board.path), AuditOptions())
+    selection = measuring_selection(setup)
+    found, _ = find_sensors(board, selection)
+    streamed, quick = _measured(board, found, selection, setup, AuditOptions())
+    assert quick is not None
+    assert [s.name for s in streamed] == [s.name for s in sensors]
+    started = solve_sensors(board, streamed, config, quick=quick)
+    after = solve_sensors(board, streamed, config)
+    assert started == after
+    assert set(started) >= {"TOUCH1"}
