@@ -9,6 +9,7 @@ Usage: ``python bench/bench_read.py [TARGET_MB]`` (default 10).
 
 from __future__ import annotations
 
+import argparse
 import subprocess
 import sys
 import tempfile
@@ -126,7 +127,10 @@ def _rss_growth_bytes(text: str) -> int:
 
 
 def main(argv: list[str]) -> int:
-    target_mb = float(argv[1]) if len(argv) > 1 else 10.0
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("target_mb", nargs="?", type=float, default=10.0,
+                        help="size of the panelised board in MB (default 10)")
+    target_mb = parser.parse_args(argv[1:]).target_mb
     text = panelised(int(target_mb * 1e6))
     size = len(text.encode("utf-8"))
     t_ref, _ = _timed(sexpdata.loads, text)

@@ -11,6 +11,7 @@ it is not there yet).
 
 from __future__ import annotations
 
+import argparse
 import sys
 import tempfile
 import time
@@ -37,8 +38,11 @@ def main(argv: list[str]) -> int:
     from auditor.read import read_board
     from auditor.sensors import find_sensors, measure
 
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("board", nargs="?", help="board file (default: the demo board)")
+    board_arg = parser.parse_args(argv).board
     with tempfile.TemporaryDirectory() as scratch:
-        path = _board_path(argv, Path(scratch))
+        path = _board_path([board_arg] if board_arg else [], Path(scratch))
         start = time.process_time()
         board = read_board(path)
         read_s = time.process_time() - start

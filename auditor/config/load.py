@@ -123,7 +123,7 @@ def _overlay(value: Any, where: ConfigText) -> Overlay:
 def _sensors(value: Any, where: ConfigText) -> Any:
     if not isinstance(value, dict):
         raise where.error("sensors must be a table", "sensors")
-    return selection_from_mapping(value, where.located("sensors"))
+    return selection_from_mapping(value, where.sub("sensors").located)
 
 
 def _severity(value: Any, where: ConfigText) -> dict[str, str]:

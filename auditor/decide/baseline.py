@@ -114,12 +114,16 @@ def apply_baseline(report: Report, baseline: Baseline) -> Report:
     """Mark findings the baseline accepts; list what it holds that was not found.
 
     Matching is :func:`auditor.decide.policy.mark_baseline` (findings in report
-    order, each entry accepting ``count`` of them, waived findings using none).
+    order, each entry accepting ``count`` of them; waived findings are not
+    marked but use up entries left over, so those are not stale).
     """
     marked, stale_keys = mark_baseline(report.findings, dict(baseline.counts))
     left = Counter(dict(baseline.counts))
     for d in marked:
         if d.in_baseline:
+            left[d.finding.key] -= 1
+    for d in marked:  # waived findings use up what is left for their key
+        if d.waived and left[d.finding.key] > 0:
             left[d.finding.key] -= 1
     stale = tuple(describe(k) + (f" (x{left[k]} not found)" if left[k] > 1 else "")
                   for k in stale_keys)

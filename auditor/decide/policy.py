@@ -94,7 +94,13 @@ def mark_baseline(findings: tuple[DecidedFinding, ...], baseline: Mapping[Findin
                   ) -> tuple[tuple[DecidedFinding, ...], tuple[FindingKey, ...]]:
     """The baseline seam: mark findings whose key the baseline holds (each
     entry accepts as many findings as its count); returns the marked findings
-    and the keys left unmatched (stale). Waived findings use no entry."""
+    and the keys left unmatched (stale).
+
+    Findings that are not waived take the entries first. A waived finding
+    is not marked (its waiver already decides it), but it still uses up an
+    entry left over for its key: the finding is there, so the entry is not
+    stale (a finding baselined and waived later is neither new nor gone).
+    """
     remaining = Counter(dict(baseline))
     marked: list[DecidedFinding] = []
     for d in findings:
@@ -103,5 +109,8 @@ def mark_baseline(findings: tuple[DecidedFinding, ...], baseline: Mapping[Findin
             remaining[key] -= 1
             d = replace(d, in_baseline=True)
         marked.append(d)
+    for d in marked:
+        if d.waived and remaining[d.finding.key] > 0:
+            remaining[d.finding.key] -= 1
     stale = tuple(k for k, n in sorted(remaining.items()) if n > 0)
     return tuple(marked), stale

@@ -12,7 +12,7 @@ Distances default to values common in touch layout practice
 from __future__ import annotations
 
 import fnmatch
-from collections.abc import Iterable, Mapping
+from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass, fields, replace
 from typing import Any
 
@@ -104,7 +104,8 @@ _FLOATS = ("min_area_mm2", "cue_min_area_mm2", "proximity_diameter_mm",
 _GROUPS = ("sliders", "wheels")
 
 
-def selection_from_mapping(mapping: Mapping[str, Any], source: str = "<configuration>",
+def selection_from_mapping(mapping: Mapping[str, Any],
+                           source: str | Callable[[str], str] = "<configuration>",
                            base: SensorSelection | None = None) -> SensorSelection:
     """Build a selection from a ``[tool.padaudit.sensors]`` style mapping.
 
@@ -116,7 +117,8 @@ def selection_from_mapping(mapping: Mapping[str, Any], source: str = "<configura
     Raises
     ------
     ConfigError
-        On an unknown key or a value of the wrong type, naming ``source``.
+        On an unknown key or a value of the wrong type, naming ``source``
+        (a file name, or a function giving ``file:line`` of a key).
 
     Examples
     --------
@@ -128,10 +130,11 @@ def selection_from_mapping(mapping: Mapping[str, Any], source: str = "<configura
                                                           "extra_noisy_prefixes"}
     changes: dict[str, Any] = {}
     for key, value in mapping.items():
+        where = source(key) if callable(source) else source
         if key not in known:
             valid = ", ".join(sorted(known))
-            raise ConfigError(source, f"unknown sensors key {key!r}; valid keys: {valid}")
-        changes[key] = _converted(key, value, source)
+            raise ConfigError(where, f"unknown sensors key {key!r}; valid keys: {valid}")
+        changes[key] = _converted(key, value, where)
     for extra, target in (("extra_noisy_nets", "noisy_nets"),
                           ("extra_noisy_prefixes", "noisy_prefixes")):
         if extra in changes:

@@ -13,13 +13,13 @@ from __future__ import annotations
 from collections.abc import Callable
 from dataclasses import dataclass
 
+import numpy as np
 import shapely
 from shapely import STRtree
 from shapely.geometry import MultiPolygon, Polygon
 from shapely.geometry.base import BaseGeometry
 
 from auditor.model.board import Board, CopperItem
-from auditor.model.geometry import union_of
 
 Bounds = tuple[float, float, float, float]
 
@@ -169,10 +169,53 @@ def _connected(board: Board, layer: str, net: str, piece: Polygon) -> bool:
     return False
 
 
+def _fills_area(board: Board, layer: str, net: str, pieces: tuple[Piece, ...]) -> float:
+    """Area of the union of ``net``'s zone fills on ``layer``: their areas
+    less what each two of them share, found tile by tile (uniting two
+    hatched pours whole took 0.1 s on the demo board). Copper that three
+    or more fills share is subtracted once too often: overlapping pours of
+    one net are rare, and a few mm² do not matter to a ground's area."""
+    fills = [f.geometry for z in board.zones if z.net == net and not z.is_rule_area
+             for f in z.fills if f.layer == layer]
+    total = sum(float(f.area) for f in fills)
+    if len(fills) < 2:
+        return total
+    mine = [p for p in pieces if p.item.source == "zone" and p.item.net == net]
+    geometries = [p.geometry for p in mine]
+    left, right = STRtree(geometries).query(geometries, predicate="intersects")
+    for a, b in zip(left.tolist(), right.tolist(), strict=True):
+        if a < b and mine[a].item is not mine[b].item:
+            total -= float(mine[a].geometry.intersection(mine[b].geometry).area)
+    return total
+
+
+def _outside_fills_area(board: Board, layer: str, net: str, pieces: tuple[Piece, ...],
+                        tree: STRtree) -> float:
+    """Area of ``net``'s other copper on ``layer`` (pads, tracks, vias,
+    graphics) outside its zone fills, item by item."""
+    items = [it for it in board.items_on(layer) if it.net == net and it.source != "zone"]
+    if not items:
+        return 0.0
+    geometries = [it.geometry for it in items]
+    owner, index = tree.query(geometries)
+    keep = [k for k, i in enumerate(index.tolist())
+            if pieces[i].item.source == "zone" and pieces[i].item.net == net]
+    covered = np.zeros(len(items))
+    if keep:
+        firsts, parts = owner[keep], index[keep]
+        shared = shapely.area(shapely.intersection(
+            np.asarray(geometries, dtype=object)[firsts],
+            np.asarray([pieces[i].geometry for i in parts.tolist()], dtype=object)))
+        np.add.at(covered, firsts, shared)
+    own = shapely.area(np.asarray(geometries, dtype=object))
+    return float(np.maximum(own - covered, 0.0).sum())
+
+
 def net_copper_area(board: Board, net: str) -> float:
     """Copper area of ``net`` over all layers (mm²).
 
-    Zone fills count whole (union per layer when several zones share one);
+    Zone fills count whole (their union per layer when several zones share
+    one, :func:`_fills_area`);
     other items count for the part outside the fills. Overlaps between
     non-zone items (a track end on its pad) are counted twice: a few mm² on
     a ground of thousands, well inside what a pad-to-ground ratio needs.
@@ -183,19 +226,9 @@ def net_copper_area(board: Board, net: str) -> float:
         return hit[1]
     total = 0.0
     for layer in board.copper_layers:
-        fills = [f.geometry for z in board.zones if z.net == net and not z.is_rule_area
-                 for f in z.fills if f.layer == layer]
-        fill = fills[0] if len(fills) == 1 else union_of(fills)
-        total += float(fill.area)
         pieces, tree = tiled(board, layer)
-        for item in board.items_on(layer):
-            if item.net != net or item.source == "zone":
-                continue
-            zone_parts = [pieces[int(i)].geometry for i in tree.query(item.geometry)
-                          if pieces[int(i)].item.source == "zone"
-                          and pieces[int(i)].item.net == net]
-            covered = sum(float(part.intersection(item.geometry).area) for part in zone_parts)
-            total += max(0.0, float(item.geometry.area) - covered)
+        total += _fills_area(board, layer, net, pieces)
+        total += _outside_fills_area(board, layer, net, pieces, tree)
     if len(_AREAS) > 32:
         _AREAS.clear()
     _AREAS[key] = (board, total)

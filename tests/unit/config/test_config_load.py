@@ -252,3 +252,18 @@ def test_non_finite_number_in_config_rejected(tmp_path: Path) -> None:
     cfg = write(tmp_path / "padaudit.toml", "air_gap_mm = nan\n")
     with pytest.raises(ConfigError, match="finite"):
         load_config(cfg)
+
+
+@pytest.mark.parametrize("text, line", [
+    ('[sensors]\nnets = ["TOUCH*"]\n\nnetz = ["A"]\n', 4),
+    ('[sensors]\nnets = ["TOUCH*"]\nmin_area_mm2 = -3\n', 3),
+    ('[tool.padaudit]\nprofile = "default"\n[tool.padaudit.sensors]\nnets = ["T*"]\nbogus = 1\n', 5),
+])
+def test_sensor_key_errors_point_at_the_key(tmp_path: Path, text: str, line: int) -> None:
+    # The line to edit is the key's, not the table header's (common practice,
+    # no source).
+    name = "pyproject.toml" if text.startswith("[tool.") else "padaudit.toml"
+    cfg = write(tmp_path / name, text)
+    with pytest.raises(ConfigError) as exc:
+        load_config(cfg)
+    assert str(exc.value).startswith(f"{cfg}:{line}: ")

@@ -114,3 +114,20 @@ def test_stale_entry_says_how_many_were_not_found() -> None:
     assert marked.findings[0].in_baseline
     assert marked.stale_baseline == (
         "ground-gap-tight on SW_MODE (nets GND, TOUCH_MODE; refs E2) (x2 not found)",)
+
+
+def test_a_baselined_finding_waived_later_is_neither_new_nor_stale() -> None:
+    # The usual order in a project: baseline first, then a waiver with a
+    # reason for one of the accepted findings (common practice, no source).
+    report = sample.sample_report()
+    unwaived = dataclasses.replace(report, findings=tuple(
+        dataclasses.replace(d, waived="") for d in report.findings))
+    baseline = Baseline.of(unwaived.findings)
+    first = unwaived.findings[0]
+    later = dataclasses.replace(unwaived, findings=(
+        dataclasses.replace(first, waived="checked on the bench"),
+        *unwaived.findings[1:]))
+    marked = apply_baseline(later, baseline)
+    assert marked.stale_baseline == ()
+    assert marked.findings[0].waived and not marked.findings[0].in_baseline
+    assert marked.exit_code == 0
