@@ -32,6 +32,14 @@ def test_demo_text_run_exits_0_and_says_it_is_a_demo(capsys: pytest.CaptureFixtu
     out = capsys.readouterr().out
     assert "planted on purpose" in out
     assert "\x1b[" not in out
+    # The README's sample is this run, trimmed: every line it shows must be
+    # a line the demo prints today (common practice, no source).
+    readme = (ROOT / "README.md").read_text("utf-8")
+    sample = readme.split("`padaudit demo --color never`, trimmed", 1)[1]
+    sample = sample.split("```text\n", 1)[1].split("```", 1)[0]
+    printed = set(out.splitlines())
+    stale = [line for line in sample.splitlines() if line.strip() != "…" and line not in printed]
+    assert not stale, f"README sample lines the demo no longer prints: {stale}"
 
 
 @pytest.mark.parametrize("planted", PLANTED["planted"], ids=lambda p: p["problem"])
