@@ -7,9 +7,9 @@ as soon as it is measured, so solving overlaps measuring) and, on a machine
 with a core to spare, a forked helper process starts on them at once. When
 the caller asks for the results it works through whatever is still queued
 itself, beside the helpers, then collects theirs. The solves hold the GIL
-(assembly in numpy, SuperLU), so processes, not threads; without the
-``fork`` start method (Windows), or with ``workers=1``, everything is solved
-in this process.
+(assembly in numpy, SuperLU), so processes, not threads; off Linux (see
+:func:`_process_count`), or with ``workers=1``, everything is solved in
+this process.
 
 A helper computes exactly what :func:`auditor.field.api.solve_pad` computes
 in this process: the results are the same bits either way (checked in
@@ -23,6 +23,7 @@ from __future__ import annotations
 import multiprocessing
 import os
 import queue
+import sys
 from collections.abc import Callable, Sequence
 from multiprocessing.process import BaseProcess
 from typing import Any
@@ -65,8 +66,13 @@ def _busy(cores: int) -> bool:
 
 
 def _process_count(requested: int | None) -> int:
-    """Processes to solve in, this one included."""
-    if "fork" not in multiprocessing.get_all_start_methods():
+    """Processes to solve in, this one included.
+
+    Helpers are forked, and only on Linux: macOS offers ``fork`` but its
+    system libraries (the BLAS numpy may use there among them) are not safe
+    to use in a forked child, and Windows has no ``fork``.
+    """
+    if not sys.platform.startswith("linux") or "fork" not in multiprocessing.get_all_start_methods():
         return 1
     if requested is None:
         cores = available_cores()
