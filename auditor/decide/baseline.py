@@ -18,7 +18,7 @@ from collections import Counter
 from collections.abc import Iterable
 from pathlib import Path
 
-from auditor.decide.policy import mark_baseline
+from auditor.decide.policy import baseline_leftovers, mark_baseline
 from auditor.errors import ConfigError
 from auditor.report.model import DecidedFinding, Report
 
@@ -118,13 +118,7 @@ def apply_baseline(report: Report, baseline: Baseline) -> Report:
     marked but use up entries left over, so those are not stale).
     """
     marked, stale_keys = mark_baseline(report.findings, dict(baseline.counts))
-    left = Counter(dict(baseline.counts))
-    for d in marked:
-        if d.in_baseline:
-            left[d.finding.key] -= 1
-    for d in marked:  # waived findings use up what is left for their key
-        if d.waived and left[d.finding.key] > 0:
-            left[d.finding.key] -= 1
+    left = baseline_leftovers(marked, dict(baseline.counts))
     stale = tuple(describe(k) + (f" (x{left[k]} not found)" if left[k] > 1 else "")
                   for k in stale_keys)
     return dataclasses.replace(report, findings=marked,

@@ -10,7 +10,7 @@ nothing is *stale* and reported). Baseline matching is a separate step
 from __future__ import annotations
 
 from collections import Counter
-from collections.abc import Iterable, Mapping
+from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field, replace
 
 from auditor.config.model import Waiver
@@ -109,8 +109,20 @@ def mark_baseline(findings: tuple[DecidedFinding, ...], baseline: Mapping[Findin
             remaining[key] -= 1
             d = replace(d, in_baseline=True)
         marked.append(d)
+    left = baseline_leftovers(marked, baseline)
+    return tuple(marked), tuple(k for k, n in sorted(left.items()) if n > 0)
+
+
+def baseline_leftovers(marked: Sequence[DecidedFinding], baseline: Mapping[FindingKey, int]
+                       ) -> Counter[FindingKey]:
+    """What each baseline entry's count has left once ``marked`` (the
+    output of :func:`mark_baseline`) used it: one per finding marked, then
+    one per waived finding of that key while any is left."""
+    left = Counter(dict(baseline))
     for d in marked:
-        if d.waived and remaining[d.finding.key] > 0:
-            remaining[d.finding.key] -= 1
-    stale = tuple(k for k, n in sorted(remaining.items()) if n > 0)
-    return tuple(marked), stale
+        if d.in_baseline:
+            left[d.finding.key] -= 1
+    for d in marked:
+        if d.waived and left[d.finding.key] > 0:
+            left[d.finding.key] -= 1
+    return left
