@@ -88,8 +88,8 @@ def _notes(setup: PadSetup, has_ground: bool) -> list[str]:
     films = [setup.board_layers[i] for i in left_out_films(setup)]
     if films:
         thin = ", ".join(f"{1000 * f.thickness_mm:.0f} µm" for f in films)
-        notes.append(f"thin film(s) far behind the pad left out ({thin}; Cp changes "
-                     "by about 0.3 % at most)")
+        notes.append(f"thin film(s) far behind the pad left out ({thin}; Cp changed by "
+                     "0.3 % at most on the demo's pads, measured with the film meshed)")
     if setup.finger_diameter_mm is not None:
         notes.append(f"finger: {setup.finger_diameter_mm:g} mm disk, floating, "
                      f"{setup.body_to_earth_pf:g} pF body to earth")
