@@ -24,12 +24,13 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
+from auditor.audit import AuditOptions, measuring_selection, resolve_setup  # noqa: E402
 from auditor.field.pad_model import field_matrices  # noqa: E402
-from auditor.pipeline import AuditOptions, measuring_selection, resolve_setup  # noqa: E402
-from auditor.pipeline_extras import precise_extras  # noqa: E402
-from auditor.pipeline_field import SELF_KINDS, pad_setup_for, solve_sensors  # noqa: E402
 from auditor.read import read_board  # noqa: E402
 from auditor.sensors import find_sensors, measure  # noqa: E402
+from auditor.solve.dispatch import solve_sensors  # noqa: E402
+from auditor.solve.extras import precise_extras  # noqa: E402
+from auditor.solve.setup import SELF_KINDS, pad_setup_for  # noqa: E402
 
 DEMO = Path(__file__).resolve().parents[1] / "auditor" / "demo" / "front_panel.kicad_pcb"
 

@@ -2,7 +2,7 @@
 
 Run: ``python bench/bench_demo.py [--repeat N] [--no-cli]``.
 
-Stages, as :func:`auditor.pipeline.run_audit` and the ``demo`` command run
+Stages, as :func:`auditor.audit.run_audit` and the ``demo`` command run
 them on the bundled board (cold caches: a fresh process per repeat):
 
 * read: ``read_board`` (parse + board model);
@@ -58,10 +58,7 @@ def stages_once() -> dict[str, Any]:
     """One cold run of the demo's stages in this process (called in a child)."""
     import argparse as ap
 
-    from auditor.cli.report_options import emit
-    from auditor.demo import demo_board_path, demo_config_path
-    from auditor.field import crosssection, pad_model
-    from auditor.pipeline import (
+    from auditor.audit import (
         AuditOptions,
         _measured,
         build_report,
@@ -69,9 +66,12 @@ def stages_once() -> dict[str, Any]:
         resolve_setup,
         solve_sensors,
     )
-    from auditor.pipeline_field import SELF_KINDS
+    from auditor.cli.report_options import emit
+    from auditor.demo import demo_board_path, demo_config_path
+    from auditor.field import crosssection, pad_model
     from auditor.read import read_board
     from auditor.sensors import find_sensors, measure
+    from auditor.solve.setup import SELF_KINDS
 
     board_path = demo_board_path()
     options = AuditOptions(config_path=str(demo_config_path()))

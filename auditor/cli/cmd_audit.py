@@ -9,10 +9,11 @@ from __future__ import annotations
 import argparse
 import dataclasses
 
+from auditor.audit import run_audit
+from auditor.cli.audit_runner import gated_options
 from auditor.cli.progress import ProgressCallback
 from auditor.cli.report_options import add_report_options, emit
 from auditor.config import POWER_CHOICES, TOUCH_SIDES
-from auditor.pipeline import options_from_args, run_audit
 
 
 def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
@@ -50,7 +51,7 @@ def run(args: argparse.Namespace) -> int:
     """Audit the board and report; returns the exit code."""
     progress = ProgressCallback(quiet=args.quiet)
     try:
-        options = dataclasses.replace(options_from_args(args), progress=progress)
+        options = dataclasses.replace(gated_options(args), progress=progress)
         report = run_audit(args.board, options)
     finally:
         progress.close()

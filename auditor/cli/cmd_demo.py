@@ -12,12 +12,12 @@ import argparse
 import dataclasses
 import sys
 
-from auditor.cli.audit_runner import shown_as
+from auditor.audit import run_audit
+from auditor.cli.audit_runner import gated_options, shown_as
 from auditor.cli.main import EXIT_CLEAN, EXIT_FINDINGS
 from auditor.cli.progress import ProgressCallback
 from auditor.cli.report_options import add_report_options, emit
 from auditor.demo import demo_board_path, demo_config_path
-from auditor.pipeline import options_from_args, run_audit
 
 
 def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
@@ -47,7 +47,7 @@ def run(args: argparse.Namespace) -> int:
     args.config = str(demo_config_path())
     progress = ProgressCallback(quiet=args.quiet)
     try:
-        options = dataclasses.replace(options_from_args(args), progress=progress)
+        options = dataclasses.replace(gated_options(args), progress=progress)
         # Show the file's name, not where this venv put it, so the demo's
         # output is the same on every machine.
         report = shown_as(run_audit(str(board), options), board.name)

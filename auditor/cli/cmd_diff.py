@@ -17,10 +17,10 @@ from pathlib import Path
 
 from auditor.cli.audit_runner import AuditFn, auditor_for, shown_as
 from auditor.cli.colour import COLOUR_CHOICES, use_colour
+from auditor.decide.diff import compare_reports
+from auditor.decide.records import Report
 from auditor.errors import UsageError
-from auditor.report.diff import compare_reports
 from auditor.report.diff_render import DIFF_FORMATS, render_diff
-from auditor.report.model import Report
 
 
 def _fraction(text: str) -> float:

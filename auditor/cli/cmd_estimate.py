@@ -3,7 +3,7 @@
 Lets a designer size a pad before layout: Cp, the change under a finger and
 the capacitance matrices, for one pad diameter or a sweep (``8:16:2``).
 ``--precise`` also solves the same round pad, ring and plane with the 3-D
-moment method (:func:`auditor.pipeline_precise.estimate_precise`) and prints
+moment method (:func:`auditor.field.round_pad.estimate_precise`) and prints
 it beside the quick result with the difference.
 """
 
@@ -29,7 +29,7 @@ _MAX_PAD_DIAMETER_MM = 1000.0  # 1 m; common practice, no source
 _MAX_VALUE = 1000.0  # any length option (mm), εr or pF; common practice, no source
 _MIN_OVERLAY_MM = 0.001  # thinner layers: the finger touches the pad, the mesh fails
 #: Cells of ``--precise``: 0.25 mm keeps the round pad within about 0.5 % of
-#: the quick solve (tests/unit/test_pipeline_precise.py) at about 1.5 s a pad.
+#: the quick solve (tests/unit/solve/test_precise.py) at about 1.5 s a pad.
 _PRECISE_CELL_MM = 0.25
 _DIGITS = 6
 
@@ -205,7 +205,7 @@ def _record(diameter_mm: float, solve: PadSolve) -> dict[str, Any]:
 
 
 def _precise_solve(setup: PadSetup, cell_mm: float) -> PadSolve:
-    from auditor.pipeline_precise import estimate_precise  # heavy: only when asked
+    from auditor.field.round_pad import estimate_precise  # heavy: only when asked
 
     try:
         return estimate_precise(setup, cell_mm=cell_mm)

@@ -19,10 +19,9 @@ from pathlib import Path
 
 from auditor.cli.audit_runner import auditor_for, shown_as
 from auditor.cli.colour import use_colour
+from auditor.decide.records import Report
 from auditor.errors import UsageError
 from auditor.gitrev import board_at, repo_root, run_git, staged_boards
-from auditor.report.cautions import with_cautions
-from auditor.report.model import Report
 from auditor.report.render import render
 
 #: Marks a hook file as ours, so ``install`` may replace it without --force.
@@ -103,7 +102,6 @@ def _audit_staged(args: argparse.Namespace, cwd: Path) -> list[tuple[str, int]]:
 
 
 def _show(report: Report) -> int:
-    report = with_cautions(report)
     render(report, "text", sys.stdout, use_colour("auto", sys.stdout, os.environ))
     return report.exit_code
 

@@ -64,7 +64,7 @@ def selection_from_args(args: argparse.Namespace,
 def _configured_selection(args: argparse.Namespace) -> SensorSelection:
     """The selection from the configuration found beside the board (and the
     profile's measuring distances), as ``padaudit audit`` uses it."""
-    from auditor.pipeline import AuditOptions, measuring_selection, resolve_setup
+    from auditor.audit import AuditOptions, measuring_selection, resolve_setup
 
     setup = resolve_setup(args.board, AuditOptions(config_path=args.config,
                                                    profile=args.profile))

@@ -17,9 +17,8 @@ from typing import TextIO
 
 from auditor.cli.audit_runner import AuditFn, auditor_for, shown_as
 from auditor.cli.colour import COLOUR_CHOICES, use_colour
+from auditor.decide.records import Report
 from auditor.errors import UsageError
-from auditor.report.cautions import with_cautions
-from auditor.report.model import Report
 from auditor.report.render import FORMATS, render
 from auditor.report.text import ORDERS
 
@@ -60,20 +59,16 @@ def _write_file(path: str, text: str) -> None:
         raise UsageError(f"{path}: cannot write: {exc.strerror or exc}") from None
 
 
-def _gated(report: Report, args: argparse.Namespace) -> Report:
+def _write_baseline(report: Report, path: str) -> None:
+    """Record the report's findings (the audit accepted them all already)."""
     # Imported here, as the picture and the diff below: most runs use none
     # of them, and every import costs start-up time.
-    from auditor.decide.baseline import apply_baseline, load_baseline, write_baseline
+    from auditor.decide.baseline import Baseline, dumps
 
-    if getattr(args, "write_baseline", None):
-        try:
-            written = write_baseline(args.write_baseline, report)
-        except OSError as exc:
-            raise UsageError(f"{args.write_baseline}: cannot write: {exc.strerror}") from None
-        report = apply_baseline(report, written)
-    elif getattr(args, "baseline", None):
-        report = apply_baseline(report, load_baseline(args.baseline))
-    return report
+    try:
+        Path(path).write_text(dumps(Baseline.of(report.findings)), encoding="utf-8")
+    except OSError as exc:
+        raise UsageError(f"{path}: cannot write: {exc.strerror}") from None
 
 
 def _with_board(report: Report) -> Report:
@@ -88,8 +83,8 @@ def _with_board(report: Report) -> Report:
 
 def _against(report: Report, args: argparse.Namespace, audit: AuditFn | None,
              stdout: TextIO, colour: bool) -> int:
+    from auditor.decide.diff import compare_reports
     from auditor.gitrev import board_at, locate
-    from auditor.report.diff import compare_reports
     from auditor.report.diff_render import render_diff
 
     audit = audit or auditor_for(args)
@@ -104,12 +99,12 @@ def _against(report: Report, args: argparse.Namespace, audit: AuditFn | None,
 
 def emit(report: Report, args: argparse.Namespace, *, audit: AuditFn | None = None,
          stdout: TextIO | None = None, env: Mapping[str, str] | None = None) -> int:
-    """Apply the baseline, write every requested output, return the exit code.
+    """Write the baseline file and every requested output, return the exit code.
 
     Parameters
     ----------
     report:
-        What the pipeline produced.
+        What the audit decided (baseline applied, :func:`auditor.audit.run_audit`).
     args:
         Parsed options from :func:`add_report_options` (missing ones default).
     audit:
@@ -124,7 +119,8 @@ def emit(report: Report, args: argparse.Namespace, *, audit: AuditFn | None = No
         from auditor.gitrev import check_board_at
 
         check_board_at(report.info.board_path, args.against)
-    report = _gated(with_cautions(report), args)
+    if getattr(args, "write_baseline", None):
+        _write_baseline(report, args.write_baseline)
     if getattr(args, "svg", None):
         from auditor.report.svg import write_svg
 

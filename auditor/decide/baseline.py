@@ -19,8 +19,8 @@ from collections.abc import Iterable
 from pathlib import Path
 
 from auditor.decide.policy import baseline_leftovers, mark_baseline
+from auditor.decide.records import DecidedFinding, Report
 from auditor.errors import ConfigError
-from auditor.report.model import DecidedFinding, Report
 
 BASELINE_FORMAT = 1
 FindingKey = tuple[str, str, tuple[str, ...], tuple[str, ...]]

@@ -14,7 +14,7 @@ from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field, replace
 
 from auditor.config.model import Waiver
-from auditor.report.model import DecidedFinding
+from auditor.decide.records import DecidedFinding
 from auditor.rules.finding import Finding, Severity
 from auditor.rules.profiles import severity_of_level
 from auditor.rules.registry import RuleSpec

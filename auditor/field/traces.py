@@ -5,7 +5,7 @@ its length; vias add the Johnson & Graham estimate when a plane is present.
 The cache key is the section rounded: width, height to the plane, coplanar
 gap and board thickness to 0.1 µm, er to 1e-4, so runs of one track width
 share a solve. The board measurement rounds more coarsely before that
-(:mod:`auditor.pipeline_traces`: gaps to 0.01 mm below 1 mm and 0.1 mm above,
+(:mod:`auditor.solve.traces`: gaps to 0.01 mm below 1 mm and 0.1 mm above,
 plane heights to 1 µm), which is what makes nearly equal traces share one.
 Each distinct section is solved on its mirror-symmetric half
 (:func:`auditor.field.crosssection.solve_cross_section`).

@@ -1,4 +1,4 @@
-"""report stage: interchangeable views of one :class:`~auditor.report.model.Report`.
+"""report stage: interchangeable views of one :class:`~auditor.decide.records.Report`.
 
 * :func:`auditor.report.render.render` — ``text`` (rich), ``json``, ``sarif``,
   ``junit``, ``markdown`` to a stream;

@@ -14,11 +14,12 @@ from collections.abc import Iterable
 from importlib import resources
 from typing import TYPE_CHECKING, Any, TextIO
 
-from auditor.report.model import DecidedFinding, PadMetrics, Report, SensorResult
+from auditor.decide.records import DecidedFinding, Report, SensorResult
+from auditor.model.results import PadMetrics
 from auditor.sensors.model import SensePath, Surroundings
 
 if TYPE_CHECKING:
-    from auditor.field.precise.results import CouplingTable, PreciseExtras, SegmentScan
+    from auditor.model.results import CouplingTable, PreciseExtras, SegmentScan
 
 #: Bumped when a field is removed or changes meaning; additions keep it.
 SCHEMA_VERSION = 1

@@ -1,4 +1,4 @@
-"""Back-ends for a :class:`~auditor.report.diff.ReportDiff`: text, json, markdown."""
+"""Back-ends for a :class:`~auditor.decide.diff.ReportDiff`: text, json, markdown."""
 
 from __future__ import annotations
 
@@ -9,9 +9,9 @@ from rich.console import Console
 from rich.table import Table
 from rich.text import Text
 
+from auditor.decide.diff import PadChange, ReportDiff
+from auditor.decide.records import DecidedFinding
 from auditor.report.as_json import dumps, rounded
-from auditor.report.diff import PadChange, ReportDiff
-from auditor.report.model import DecidedFinding
 
 DIFF_FORMATS: tuple[str, ...] = ("text", "json", "markdown")
 DIFF_SCHEMA_VERSION = 1

@@ -11,7 +11,7 @@ from __future__ import annotations
 import xml.etree.ElementTree as ET
 from typing import TextIO
 
-from auditor.report.model import DecidedFinding, Report, SensorResult
+from auditor.decide.records import DecidedFinding, Report, SensorResult
 
 
 def _describe(d: DecidedFinding) -> str:

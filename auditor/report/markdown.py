@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from typing import TextIO
 
-from auditor.report.model import DecidedFinding, Report
+from auditor.decide.records import DecidedFinding, Report
 from auditor.report.text import ordered_sensors
 from auditor.report.text_precise import strongest_pairs
 

@@ -11,7 +11,7 @@ import importlib
 from collections.abc import Callable
 from typing import TextIO
 
-from auditor.report.model import Report
+from auditor.decide.records import Report
 from auditor.report.text import ORDERS
 
 Backend = Callable[[Report, TextIO, bool, str], None]

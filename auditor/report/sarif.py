@@ -13,8 +13,8 @@ import os
 from pathlib import Path
 from typing import Any, TextIO
 
+from auditor.decide.records import DecidedFinding, Report, RuleInfo
 from auditor.report.as_json import dumps, rounded
-from auditor.report.model import DecidedFinding, Report, RuleInfo
 from auditor.rules.finding import Severity
 
 SARIF_VERSION = "2.1.0"

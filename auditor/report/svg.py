@@ -19,7 +19,7 @@ from pathlib import Path
 from shapely.geometry.base import BaseGeometry
 from shapely.ops import unary_union
 
-from auditor.report.model import Report, SensorResult
+from auditor.decide.records import Report, SensorResult
 from auditor.report.svg_marks import (
     LEGEND_PLACES,
     SEVERITY_COLOURS,

@@ -11,7 +11,7 @@ from __future__ import annotations
 from collections import Counter
 from dataclasses import dataclass
 
-from auditor.report.model import DecidedFinding
+from auditor.decide.records import DecidedFinding
 from auditor.rules.finding import Severity
 
 SEVERITY_COLOURS = {Severity.ERROR: "#d62728", Severity.WARNING: "#ff7f0e",

@@ -12,7 +12,7 @@ from html import escape
 from typing import TYPE_CHECKING
 
 if TYPE_CHECKING:
-    from auditor.field.precise.results import SegmentScan
+    from auditor.model.results import SegmentScan
 
 #: Segment line colours: matplotlib's published "tab10" cycle (BSD licence).
 SEGMENT_COLOURS = ("#1f77b4", "#ff7f0e", "#2ca02c", "#d62728", "#9467bd", "#8c564b",

@@ -17,7 +17,7 @@ from rich.console import Console
 from rich.table import Table
 from rich.text import Text
 
-from auditor.report.model import DecidedFinding, Report, RuleInfo, SensorResult
+from auditor.decide.records import DecidedFinding, Report, RuleInfo, SensorResult
 from auditor.report.text_precise import render_precise_sections
 from auditor.rules.finding import Severity
 from auditor.sensors.model import name_order

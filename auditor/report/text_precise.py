@@ -7,8 +7,8 @@
 * one block per slider or wheel: each segment's ΔC against finger position as
   a sparkline, with the linearity figure, dead zones and reversals.
 
-Layout only: every number comes from :class:`~auditor.field.precise.results.PreciseExtras`
-and :class:`~auditor.report.model.PadMetrics`.
+Layout only: every number comes from :class:`~auditor.model.results.PreciseExtras`
+and :class:`~auditor.model.results.PadMetrics`.
 """
 
 from __future__ import annotations
@@ -20,10 +20,10 @@ from rich.console import Console
 from rich.table import Table
 from rich.text import Text
 
-from auditor.report.model import Report, SensorResult
+from auditor.decide.records import Report, SensorResult
 
 if TYPE_CHECKING:
-    from auditor.field.precise.results import CrosstalkPair, PreciseExtras, SegmentScan
+    from auditor.model.results import CrosstalkPair, PreciseExtras, SegmentScan
 
 #: Rows of the coupling table; the rest is counted on one line.
 MAX_PAIRS = 10

@@ -3,7 +3,7 @@
 
 Rules import nothing from later stages. The field metrics are described here
 by the attributes rules read (:class:`PadMetricsLike`), so any record with
-those attributes (``auditor.report.model.PadMetrics``) fits.
+those attributes (``auditor.model.results.PadMetrics``) fits.
 """
 
 from __future__ import annotations
@@ -104,7 +104,7 @@ class RuleContext:
     read_warnings: tuple[ReadWarning, ...] = ()
     metrics: Mapping[str, PadMetricsLike] = field(default_factory=dict)
     thresholds: Mapping[str, ThresholdValue] = field(default_factory=dict)
-    #: Precise-mode results (``auditor.field.precise.results.PreciseExtras``)
+    #: Precise-mode results (``auditor.model.results.PreciseExtras``)
     #: or None; read by :mod:`auditor.rules.precise_rules` through protocols.
     precise: object | None = None
     #: Electrodes the field step ran for but could not solve, with the reason.

@@ -2,7 +2,7 @@
 
 They read ``RuleContext.precise`` (set only by ``--precise`` runs) through
 the attributes described by the protocols below, so rules import nothing
-from the field stage (``auditor.field.precise.results`` has records that
+from the field stage (``auditor.model.results`` has records that
 fit). Without precise data every rule here yields nothing.
 """
 

@@ -20,7 +20,7 @@ from gitrepo import GIT_ENV, commit_file, git, new_repo  # noqa: E402
 from auditor.cli import audit_runner  # noqa: E402
 from auditor.cli.cmd_hook import HOOK_MARKER  # noqa: E402
 from auditor.cli.main import EXIT_BAD_INPUT, EXIT_CLEAN, EXIT_FINDINGS, main  # noqa: E402
-from auditor.report.model import Report  # noqa: E402
+from auditor.decide.records import Report  # noqa: E402
 
 REPO_ROOT = Path(__file__).resolve().parents[2]
 

@@ -93,7 +93,7 @@ def test_entry_point_as_a_process() -> None:
 def test_precise_agrees_with_quick_within_the_stated_tolerance(
         capsys: pytest.CaptureFixture[str]) -> None:
     """10 mm pad, 1 mm ring, solid plane 1.6 mm below, 2 mm acrylic, 10 mm
-    finger at 0.5 mm cells: tests/unit/test_pipeline_precise.py states 2 % on
+    finger at 0.5 mm cells: tests/unit/solve/test_precise.py states 2 % on
     Cp and 3 % on ΔC for this stack (measured there -0.9 % and -1.6 %)."""
     code, out, _ = _run(["--json", "--precise", "--plane-below", "1.6", "--cell", "0.5"],
                         capsys)
@@ -116,7 +116,7 @@ def test_precise_disk_on_grounded_substrate_oracle(capsys: pytest.CaptureFixture
     """Disk a = 5 mm on er 4.4, h = 0.5 mm: C = 158.37683 eps0 a
     (shared/reference/physics.md §1.6, Love/Copson with slab images). A 25 mm
     plane stands in for the infinite one; tolerance 2.5 % at 0.5 mm cells as
-    tests/unit/test_pipeline_precise.py states (measured there -1.9 %)."""
+    tests/unit/solve/test_precise.py states (measured there -1.9 %)."""
     oracle_pf = 158.37683 * epsilon_0 * 5e-3 * 1e12
     code, out, _ = _run(["--json", "--precise", "--cell", "0.5", "--pad-diameter", "10",
                          "--gap", "none", "--ground-width", "20", "--plane-below", "0.5",

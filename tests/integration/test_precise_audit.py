@@ -2,7 +2,7 @@
 
 The board (fixtures/make_rule_boards.py) is one three-segment slider, 12 x 6
 mm segments at 6.6 mm pitch, so the run stays short (a few 3-D solves). The
-physics of the numbers is checked in tests/unit/test_pipeline_precise.py
+physics of the numbers is checked in tests/unit/solve/test_precise.py
 against published values; here the CLI is: every format carries the precise
 results, JSON validates against the shipped schema and is byte-identical
 across runs, the picture has the slider plot (common practice, no source).
@@ -18,9 +18,9 @@ from pathlib import Path
 
 import pytest
 
+from auditor.audit import AuditOptions, run_audit
 from auditor.cli.main import main
-from auditor.pipeline import AuditOptions, run_audit
-from auditor.report.model import Report
+from auditor.decide.records import Report
 from auditor.report.render import render
 from fixtures.make_rule_boards import Design, board_text
 

@@ -14,11 +14,11 @@ from shapely.geometry import LineString, Point, Polygon, box
 from shapely.ops import unary_union
 
 from auditor import __version__
-from auditor.field.precise.results import CouplingTable, PreciseExtras, SegmentScan
+from auditor.decide.records import DecidedFinding, Report, RuleInfo, RunInfo, SensorResult
 from auditor.model.board import Board
 from auditor.model.items import Outline, Stackup, StackupLayer, Track, Zone, ZoneFill
 from auditor.model.items import Point as BoardPoint
-from auditor.report.model import DecidedFinding, PadMetrics, Report, RuleInfo, RunInfo, SensorResult
+from auditor.model.results import CouplingTable, PadMetrics, PreciseExtras, SegmentScan
 from auditor.rules.finding import Finding, Severity
 from auditor.sensors.model import SensePath, Sensor, Surroundings, TraceRun
 

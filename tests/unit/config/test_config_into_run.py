@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from auditor.pipeline import AuditOptions, measuring_selection, resolve_setup, rule_settings
+from auditor.audit import AuditOptions, measuring_selection, resolve_setup, rule_settings
 
 
 def setup_for(tmp_path: Path, text: str, **flags: str):  # type: ignore[no-untyped-def]

@@ -9,7 +9,7 @@ import pytest
 
 from auditor.config.model import Waiver
 from auditor.decide import Policy, decide, mark_baseline, sensitivity_ranks, sensor_verdict
-from auditor.report.model import PadMetrics
+from auditor.model.results import PadMetrics
 from auditor.rules.finding import Finding, Severity
 from auditor.rules.registry import all_rules
 

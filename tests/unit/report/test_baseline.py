@@ -9,8 +9,8 @@ import pytest
 import sample_report as sample
 
 from auditor.decide.baseline import Baseline, apply_baseline, dumps, load_baseline, write_baseline
+from auditor.decide.records import DecidedFinding
 from auditor.errors import ConfigError
-from auditor.report.model import DecidedFinding
 from auditor.rules.finding import Severity
 
 

@@ -9,9 +9,10 @@ import json
 import pytest
 import sample_report as sample
 
-from auditor.report.diff import PadChange, compare_reports, percent_change
+from auditor.decide.diff import PadChange, compare_reports, percent_change
+from auditor.decide.records import Report
+from auditor.model.results import PadMetrics
 from auditor.report.diff_render import render_diff
-from auditor.report.model import PadMetrics, Report
 
 
 def _with_pad(report: Report, name: str, metrics: PadMetrics | None) -> Report:

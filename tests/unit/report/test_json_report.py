@@ -11,8 +11,8 @@ import jsonschema
 import pytest
 import sample_report as sample
 
+from auditor.model.results import PadMetrics
 from auditor.report.as_json import SCHEMA_VERSION, load_schema, render_json, rounded, to_document
-from auditor.report.model import PadMetrics
 
 
 def _text(report: object) -> str:

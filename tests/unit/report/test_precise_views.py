@@ -15,10 +15,9 @@ import xml.etree.ElementTree as ET
 
 import sample_report as sample
 
-from auditor.field.precise.results import PreciseExtras
+from auditor.model.results import PadMetrics, PreciseExtras
 from auditor.report.as_json import dumps, to_document
 from auditor.report.markdown import render_markdown
-from auditor.report.model import PadMetrics
 from auditor.report.svg import to_svg
 from auditor.report.text import render_text
 from auditor.report.text_precise import MAX_PAIRS, binned, sparkline, strongest_pairs

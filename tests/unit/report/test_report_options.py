@@ -12,10 +12,11 @@ import pytest
 import sample_report as sample
 from gitrepo import commit_file, new_repo
 
+from auditor.audit import AuditOptions, with_baseline
 from auditor.cli.report_options import add_report_options, emit
+from auditor.decide.cautions import MAINS_CAUTION, cautions_for
+from auditor.decide.records import Report
 from auditor.errors import UsageError
-from auditor.report.cautions import MAINS_CAUTION, with_cautions
-from auditor.report.model import Report
 
 
 def _args(*argv: str) -> argparse.Namespace:
@@ -59,16 +60,20 @@ def test_colour(argv: tuple[str, ...], env: dict[str, str], escapes: bool) -> No
 
 
 def test_write_baseline_then_use_it(tmp_path: Path) -> None:
+    """The audit entry applies the baseline (:func:`with_baseline`); emit
+    writes the file and gates on what the audit decided."""
     path = tmp_path / "baseline.json"
-    code, _ = _emit(sample.sample_report(), "--write-baseline", str(path), "--quiet")
+    accepted = with_baseline(sample.sample_report(), AuditOptions(accept_all=True))
+    code, _ = _emit(accepted, "--write-baseline", str(path), "--quiet")
     assert code == 0 and path.is_file()
-    code, out = _emit(sample.sample_report(), "--baseline", str(path))
+    using = AuditOptions(baseline=str(path))
+    code, out = _emit(with_baseline(sample.sample_report(), using), "--baseline", str(path))
     assert code == 0 and "PASS" in out
     report = sample.sample_report()
     extra = dataclasses.replace(report.findings[0], finding=dataclasses.replace(
         report.findings[0].finding, sensor="SW_POWER", refs=("E1",)))
-    code, out = _emit(dataclasses.replace(report, findings=(extra, *report.findings[1:])),
-                      "--baseline", str(path))
+    changed = dataclasses.replace(report, findings=(extra, *report.findings[1:]))
+    code, out = _emit(with_baseline(changed, using), "--baseline", str(path))
     assert code == 1
     assert "ground-gap-tight on SW_MODE (nets GND, TOUCH_MODE; refs E2)" in out
 
@@ -78,13 +83,10 @@ def test_svg_option(tmp_path: Path) -> None:
     assert (tmp_path / "b.svg").read_text().startswith("<?xml")
 
 
-def test_mains_caution_is_added_once() -> None:
-    bare = sample.sample_report(cautions=())
-    assert with_cautions(bare).cautions == (MAINS_CAUTION,)
-    assert with_cautions(sample.sample_report()).cautions == sample.sample_report().cautions
-    battery = sample.sample_report(cautions=(), info=sample.sample_info(power="battery"))
-    assert with_cautions(battery).cautions == ()
-    _, out = _emit(bare)
+def test_mains_caution_is_shown() -> None:
+    assert cautions_for("mains") == (MAINS_CAUTION,)
+    assert cautions_for("battery") == ()
+    _, out = _emit(sample.sample_report(cautions=cautions_for("mains")))
     assert "IEC 62368-1" in out and "IEC 60335-1" in out
 
 

@@ -7,11 +7,7 @@ common practice, no source); dead zones and reversals trigger on any.
 
 from __future__ import annotations
 
-from auditor.field.precise.results import (
-    CouplingTable,
-    PreciseExtras,
-    SegmentScan,
-)
+from auditor.model.results import CouplingTable, PreciseExtras, SegmentScan
 
 
 def coupling(fraction: float) -> CouplingTable:

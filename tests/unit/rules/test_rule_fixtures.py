@@ -14,7 +14,7 @@ from pathlib import Path
 
 import pytest
 
-from auditor.pipeline import AuditOptions, run_audit
+from auditor.audit import AuditOptions, run_audit
 
 #: The layout rules are under test here, not the solver (tested in tests/unit/field).
 LAYOUT_ONLY = AuditOptions(solve=False)

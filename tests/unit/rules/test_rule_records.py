@@ -16,7 +16,7 @@ from precise_records import precise_cases
 from rule_records import context, path, sensor, surroundings
 
 from auditor.model.items import ReadWarning
-from auditor.report.model import PadMetrics
+from auditor.model.results import PadMetrics
 from auditor.rules.context import RuleContext
 from auditor.rules.registry import all_rules, get_rule, run_rules
 from auditor.sensors.model import LayerShadow, Neighbour, TraceRun

@@ -24,17 +24,12 @@ from auditor.field.precise import (
     slider_scan,
     solve_capacitance,
 )
-from auditor.field.precise.results import CouplingTable, PreciseExtras, SegmentScan
+from auditor.field.round_pad import merged_ground
 from auditor.model.board import Board
-from auditor.pipeline_field import DEFAULT_FINGER_MM, SELF_KINDS
-from auditor.pipeline_precise import (
-    PreciseStack,
-    ground_conductors,
-    merged_ground,
-    stack_for,
-    window_around,
-)
+from auditor.model.results import CouplingTable, PreciseExtras, SegmentScan
 from auditor.sensors.model import Sensor
+from auditor.solve.precise import PreciseStack, ground_conductors, stack_for, window_around
+from auditor.solve.setup import DEFAULT_FINGER_MM, SELF_KINDS
 
 COUPLING_MARGIN_MM = 5.0
 COUPLING_CELL_MM = 0.5

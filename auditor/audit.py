@@ -1,4 +1,4 @@
-"""One audit, end to end: read → sensors → field → rules → decide → Report.
+"""One audit, end to end: read → sensors → solve → rules → decide → Report.
 
 The field step runs before the rules so the rules on Cp and ΔC see the
 metrics; every other rule judges only the board and the sensor records.
@@ -9,7 +9,6 @@ options give the same report.
 
 from __future__ import annotations
 
-import argparse
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, replace
 from pathlib import Path
@@ -18,20 +17,25 @@ from typing import TYPE_CHECKING
 from auditor import __version__
 from auditor.config import Config, discover_config, with_overrides
 from auditor.decide import Policy, decide, sensitivity_ranks, sensor_verdict
+from auditor.decide.baseline import Baseline, apply_baseline, load_baseline
+from auditor.decide.cautions import cautions_for
+from auditor.decide.records import Report, RuleInfo, RunInfo, SensorResult
 from auditor.model.board import Board
 from auditor.model.items import ReadWarning
+from auditor.model.results import PadMetrics
 from auditor.read import read_board
-from auditor.report.model import PadMetrics, Report, RuleInfo, RunInfo, SensorResult
 from auditor.rules.context import RuleContext, RuleSettings, ThresholdValue
 from auditor.rules.profiles import Profile, load_profile
 from auditor.rules.registry import all_rules, run_rules
 from auditor.sensors import find_sensors, mark_sense_neighbours, measure_each
 from auditor.sensors.model import Sensor, name_order
 from auditor.sensors.selection import SensorSelection
+from auditor.solve.dispatch import solve_sensors as field_solve
+from auditor.solve.dispatch import unsolved_reasons
+from auditor.solve.quick import QuickSolves
 
 if TYPE_CHECKING:  # the precise solver pulls in scipy.interpolate: load it only when used
-    from auditor.field.precise.results import PreciseExtras
-    from auditor.pipeline_field import QuickSolves
+    from auditor.model.results import PreciseExtras
 
 
 @dataclass(frozen=True)
@@ -48,16 +52,10 @@ class AuditOptions:
     precise: bool = False  # True: 3-D solve of the real copper shapes
     #: Called as ``progress(sensor_name, done, total)`` after each solve.
     progress: Callable[[str, int, int], None] | None = None
-
-
-def options_from_args(args: argparse.Namespace) -> AuditOptions:
-    """The audit options in parsed arguments (absent ones left unset)."""
-    return AuditOptions(
-        config_path=getattr(args, "config", None), profile=getattr(args, "profile", None),
-        overlay=getattr(args, "overlay", None), power=getattr(args, "power", None),
-        touch_side=getattr(args, "touch_side", None), fail_on=getattr(args, "fail_on", None),
-        solve=not getattr(args, "no_solve", False),
-        precise=bool(getattr(args, "precise", False)))
+    #: Baseline file whose findings are accepted (shown, never failing).
+    baseline: str | None = None
+    #: Accept every current finding (what ``--write-baseline`` records).
+    accept_all: bool = False
 
 
 @dataclass(frozen=True)
@@ -106,8 +104,6 @@ def solve_sensors(board: Board, sensors: tuple[Sensor, ...], setup: AuditSetup,
     the 3-D) solve; sensors the solver cannot map get no entry and are
     reported ``unsolved`` (no number is made up). ``quick``: the quick
     solves already started by :func:`_measured`."""
-    from auditor.pipeline_field import solve_sensors as field_solve
-
     return field_solve(board, sensors, setup.config, precise=options.precise,
                        progress=options.progress, thresholds=setup.thresholds, quick=quick)
 
@@ -120,8 +116,6 @@ def _measured(board: Board, found: tuple[Sensor, ...], selection: SensorSelectio
     measured so that solving overlaps measuring."""
     quick = None
     if options.solve and not options.precise:
-        from auditor.pipeline_field import QuickSolves
-
         quick = QuickSolves(board, setup.config, setup.thresholds)
     measured = []
     for sensor in measure_each(board, found, selection):
@@ -181,13 +175,27 @@ def run_audit(board_path: str | Path, options: AuditOptions | None = None) -> Re
         sensors, solve_sensors(board, sensors, setup, opts, quick) if opts.solve else {})
     extras = _precise_extras(board, sensors, setup) if opts.solve and opts.precise else None
     unsolved = {**_unsolved(sensors, metrics, opts), **broken} if opts.solve else {}
-    return build_report(board, sensors, metrics, setup, extras, unsolved)
+    return with_baseline(build_report(board, sensors, metrics, setup, extras, unsolved), opts)
+
+
+def with_baseline(report: Report, options: AuditOptions) -> Report:
+    """``report`` with the baseline of ``options`` applied: every current
+    finding accepted (``accept_all``), or those the ``baseline`` file holds.
+
+    Raises
+    ------
+    ConfigError
+        When the baseline file cannot be read or is not a baseline.
+    """
+    if options.accept_all:
+        return apply_baseline(report, Baseline.of(report.findings))
+    if options.baseline:
+        return apply_baseline(report, load_baseline(options.baseline))
+    return report
 
 
 def _unsolved(sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetrics],
               options: AuditOptions) -> dict[str, str]:
-    from auditor.pipeline_field import unsolved_reasons
-
     return unsolved_reasons(sensors, metrics, options.precise)
 
 
@@ -210,7 +218,9 @@ def _precise_extras(board: Board, sensors: tuple[Sensor, ...],
                     setup: AuditSetup) -> PreciseExtras:
     """Pad-to-pad coupling and slider/wheel response (``--precise`` only:
     each costs several 3-D solves)."""
-    from auditor.pipeline_extras import precise_extras
+    # Imported here for start-up speed only: the slider scans load
+    # scipy.interpolate, which only --precise needs.
+    from auditor.solve.extras import precise_extras
 
     return precise_extras(board, sensors, setup.config)
 
@@ -256,6 +266,4 @@ def _sensor_results(sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetric
 
 
 def _cautions(power: str) -> tuple[str, ...]:
-    from auditor.report.cautions import cautions_for
-
     return cautions_for(power)

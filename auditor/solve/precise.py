@@ -19,22 +19,27 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-import numpy as np
 import shapely
 from shapely.geometry import Point, box
 from shapely.ops import polylabel
 
 from auditor.config import Config
-from auditor.field.api import PadSetup, PadSolve, solve_pad
-from auditor.field.matrix import CapacitanceMatrix
-from auditor.field.pad_model import check_setup, ground_outer_mm, reduced_network
-from auditor.field.precise import Conductor, LayeredMedium, solve_capacitance
+from auditor.field.api import solve_pad
+from auditor.field.pad_model import reduced_network
+from auditor.field.precise import Conductor, LayeredMedium
+from auditor.field.round_pad import (
+    CONTACT_AIR_MM,
+    FINGER,
+    GROUND,
+    PAD,
+    solve_pair,
+)
 from auditor.field.traces import traces_pf
 from auditor.model.board import Board
-from auditor.pipeline_field import FieldInput
-from auditor.pipeline_stack import overlay_with_mask, touch_mask
-from auditor.report.model import PadMetrics
+from auditor.model.results import PadMetrics
 from auditor.sensors.model import Sensor
+from auditor.solve.setup import FieldInput
+from auditor.solve.stack import overlay_with_mask, touch_mask
 
 #: Copper beyond this distance from the pad's bounding box is left out; the
 #: quick model's own ground reach is 10 mm (common practice, no source).
@@ -42,15 +47,6 @@ WINDOW_MARGIN_MM = 10.0
 #: Cell side of the per-pad solves; 0.5 mm keeps a 5 mm disk within 0.6 %
 #: of 8 eps0 a (docs/precise-mode.md, edge-cell table).
 CELL_MM = 0.5
-#: Thickness of the thin air layer put under the finger when nothing else
-#: separates it from copper (no overlay, no mask).
-CONTACT_AIR_MM = 0.05
-
-GROUND = "ground"
-PAD = "pad"
-FINGER = "finger"
-
-
 @dataclass(frozen=True)
 class PreciseStack:
     """The layered medium and the level of each copper layer (level 0: touch face)."""
@@ -127,25 +123,6 @@ def _polygons_only(geometry: shapely.Geometry) -> shapely.Geometry:
     return shapely.MultiPolygon(parts) if parts else shapely.Polygon()
 
 
-def merged_ground(matrix: CapacitanceMatrix, prefix: str = GROUND + "@") -> CapacitanceMatrix:
-    """One ``ground`` node from its pieces on several levels (they are one net).
-
-    Conductors tied together: their rows and columns add (charge adds, the
-    potential is shared).
-    """
-    names = list(matrix.names)
-    pieces = [i for i, n in enumerate(names) if n.startswith(prefix)]
-    if not pieces:
-        return matrix
-    rest = [i for i in range(len(names)) if i not in pieces]
-    join = np.zeros((len(names), len(rest) + 1))
-    for column, i in enumerate(rest):
-        join[i, column] = 1.0
-    join[pieces, -1] = 1.0
-    values = join.T @ matrix.array() @ join
-    return CapacitanceMatrix.from_array(tuple(names[i] for i in rest) + (GROUND,), values)
-
-
 def touch_point(sensor: Sensor) -> Point:
     """Where the finger goes: the centroid, or for a ring or loop (centroid
     outside the copper) the copper's pole of inaccessibility."""
@@ -184,16 +161,6 @@ def pad_conductors(sensor: Sensor, board: Board, stack: PreciseStack,
     return [pad, *ground_conductors(board, stack, ground_net, window, held, clear)]
 
 
-def _solve_pair(conductors: list[Conductor], medium: LayeredMedium, finger: Conductor | None,
-                cell_mm: float) -> tuple[CapacitanceMatrix, CapacitanceMatrix | None]:
-    window = shapely.union_all([c.geometry for c in conductors]).envelope
-    baseline = merged_ground(solve_capacitance(conductors, medium, cell_mm, window=window))
-    if finger is None:
-        return baseline, None
-    touched = solve_capacitance([*conductors, finger], medium, cell_mm, window=window)
-    return baseline, merged_ground(touched)
-
-
 def metrics_from_precise(sensor: Sensor, board: Board, config: Config, mapped: FieldInput,
                          others: tuple[Sensor, ...] = (),
                          cell_mm: float | None = None) -> PadMetrics:
@@ -208,7 +175,7 @@ def metrics_from_precise(sensor: Sensor, board: Board, config: Config, mapped: F
     finger = None
     if setup.finger_diameter_mm is not None:
         finger = Conductor(FINGER, finger_disk(sensor, setup.finger_diameter_mm), 0)
-    baseline, touched = _solve_pair(conductors, stack.medium, finger, cell_mm)
+    baseline, touched = solve_pair(conductors, stack.medium, finger, cell_mm)
     cp_pad = reduced_network(baseline, [PAD], setup, with_finger=False).values_pf[0][0]
     cp_touched = cp_pad if touched is None else reduced_network(
         touched, [PAD], setup, with_finger=True).values_pf[0][0]
@@ -246,92 +213,3 @@ def _versus(label: str, precise: float, quick: float) -> str:
             f"({change:+.1f} %)")
 
 
-def estimate_precise(setup: PadSetup, cell_mm: float = 0.25) -> PadSolve:
-    """The quick model's round pad, ring and plane as polygons, solved in 3-D.
-
-    For ``padaudit estimate --precise``. A hatched plane (fill < 1) is meshed
-    as a square grid of lines of the same fill and the model's hatch pitch
-    (what a board has), not as rings. Returns a :class:`PadSolve` like the
-    quick solve; ``notes`` name the discretisation.
-    """
-    check_setup(setup)
-    medium, pad_level, surface_level = _estimate_medium(setup)
-    radius = setup.pad_radius_mm
-    disk = Point(0, 0).buffer(radius, quad_segs=64)
-    conductors = [Conductor(PAD, disk, pad_level)]
-    outer = ground_outer_mm(setup)
-    if setup.gap_mm is not None:
-        ring = Point(0, 0).buffer(outer, quad_segs=64).difference(
-            Point(0, 0).buffer(radius + setup.gap_mm, quad_segs=64))
-        conductors.append(Conductor(f"{GROUND}@ring", ring, pad_level))
-    if setup.plane_depth_mm is not None:
-        plane = _plane_polygon(outer, setup.plane_fill, setup.plane_hatch_pitch_mm)
-        if not plane.is_empty:
-            conductors.append(Conductor(f"{GROUND}@plane", plane,
-                                        _plane_level(setup, pad_level)))
-    finger = None
-    if setup.finger_diameter_mm is not None:
-        finger = Conductor(FINGER, Point(0, 0).buffer(0.5 * setup.finger_diameter_mm,
-                                                      quad_segs=64), surface_level)
-    baseline, touched = _solve_pair(conductors, medium, finger, cell_mm)
-    cp_pad = reduced_network(baseline, [PAD], setup, with_finger=False).values_pf[0][0]
-    cp_touched = cp_pad if touched is None else reduced_network(
-        touched, [PAD], setup, with_finger=True).values_pf[0][0]
-    cp_trace, notes = traces_pf(setup.traces, setup.vias, setup.board_layers,
-                                setup.plane_depth_mm)
-    total = cp_pad + cp_trace
-    delta = cp_touched - cp_pad
-    notes = [f"precise: 3-D moment method, {cell_mm:g} mm cells, round pad as a 256-gon",
-             *notes]
-    return PadSolve(cp_pad, cp_trace, total, cp_touched + cp_trace, delta, delta / total,
-                    baseline, touched, tuple(notes))
-
-
-def _estimate_medium(setup: PadSetup) -> tuple[LayeredMedium, int, int]:
-    """Medium of the estimate's stack, the pad's level and the finger's level."""
-    above: list[tuple[float, float]] = []
-    if setup.overlay_mm > 0:
-        above.append((setup.overlay_mm, setup.overlay_er))
-    if setup.air_gap_mm > 0:
-        above.append((setup.air_gap_mm, 1.0))
-    board = [(b.thickness_mm, b.er) for b in setup.board_layers]
-    if setup.pad_side == "far":
-        above += board
-        board = []
-    if not above and setup.finger_diameter_mm is not None:
-        above.append((CONTACT_AIR_MM, 1.0))
-    if setup.finger_height_mm > 0:
-        above.insert(0, (setup.finger_height_mm, 1.0))
-    return LayeredMedium(tuple(above + board)), len(above), 0
-
-
-def _plane_level(setup: PadSetup, pad_level: int) -> int:
-    """Level of the plane: the board interface at the plane's depth below the pad."""
-    depth, level = 0.0, pad_level
-    for layer in setup.board_layers:
-        if depth >= setup.plane_depth_mm - 1e-9:  # type: ignore[operator]
-            break
-        depth += layer.thickness_mm
-        level += 1
-    if abs(depth - (setup.plane_depth_mm or 0.0)) > 1e-6:
-        raise ValueError(f"plane depth {setup.plane_depth_mm} mm is not at a layer interface "
-                         "of the board (precise mode puts copper on interfaces only)")
-    return level
-
-
-def _plane_polygon(outer_mm: float, fill: float, pitch_mm: float) -> shapely.Geometry:
-    """A disk of radius ``outer_mm``: solid, or a square hatch of the same fill."""
-    disk = Point(0, 0).buffer(outer_mm, quad_segs=64)
-    if fill >= 1.0:
-        return disk
-    if fill <= 0.0:
-        return shapely.Polygon()
-    # square grid of lines: fill = 1 - (1 - w/p)^2  ->  w = p (1 - sqrt(1 - fill))
-    width = pitch_mm * (1.0 - math.sqrt(1.0 - fill))
-    count = int(math.ceil(outer_mm / pitch_mm)) + 1
-    lines = []
-    for k in range(-count, count + 1):
-        c = k * pitch_mm
-        lines.append(box(c - 0.5 * width, -outer_mm, c + 0.5 * width, outer_mm))
-        lines.append(box(-outer_mm, c - 0.5 * width, outer_mm, c + 0.5 * width))
-    return shapely.union_all(lines).intersection(disk)

@@ -15,15 +15,15 @@ from pathlib import Path
 import pytest
 from scipy.constants import epsilon_0
 
+from auditor.audit import AuditOptions, measuring_selection, resolve_setup
 from auditor.field.api import BoardLayer, PadSetup, solve_pad
-from auditor.pipeline import AuditOptions, measuring_selection, resolve_setup
-from auditor.pipeline_extras import precise_extras
-from auditor.pipeline_field import solve_sensors
-from auditor.pipeline_precise import estimate_precise
+from auditor.field.round_pad import estimate_precise
 from auditor.read import read_board
 from auditor.rules.context import RuleContext
 from auditor.rules.registry import run_rules
 from auditor.sensors import find_sensors, measure
+from auditor.solve.dispatch import solve_sensors
+from auditor.solve.extras import precise_extras
 from fixtures.make_rule_boards import Design, board_text
 
 PRECISE_RULES = ("crosstalk-high", "slider-dead-zone", "slider-reversal", "slider-nonlinear")

@@ -1,50 +1,21 @@
-"""The report object every back-end renders.
+"""The decided result of one audit: findings after the policy, the gate, the
+report object every back-end renders.
 
-Built once per run by the pipeline after ``decide``; reporters (text, json,
-sarif, junit, markdown, svg) are interchangeable views of it and never compute
-anything of their own beyond layout.
+Built once per run by :func:`auditor.audit.run_audit` with ``decide``;
+reporters (text, json, sarif, junit, markdown, svg) are interchangeable views
+of it and never compute anything of their own beyond layout. The gate (what
+fails, the exit code) is decided here: :attr:`Report.failing` and
+:attr:`Report.exit_code`.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING
 
 from auditor.model.board import Board
+from auditor.model.results import PadMetrics, PreciseExtras
 from auditor.rules.finding import Finding, Severity
 from auditor.sensors.model import Sensor
-
-if TYPE_CHECKING:  # the solver package is heavy to import; reporters need only the records
-    from auditor.field.precise.results import PreciseExtras
-
-
-@dataclass(frozen=True)
-class PadMetrics:
-    """Field-solve results for one sensor, in pF (ratio unitless)."""
-
-    cp_pad_pf: float
-    cp_trace_pf: float
-    cp_total_pf: float
-    delta_c_pf: float
-    delta_ratio: float
-    method: str = "quick"  # quick (axisymmetric) or precise (3-D)
-    notes: tuple[str, ...] = ()
-    #: With ``method == "precise"``: the quick estimate of the same pad, for
-    #: showing the two side by side (None for quick metrics).
-    quick_cp_pad_pf: float | None = None
-    quick_cp_total_pf: float | None = None
-    quick_delta_c_pf: float | None = None
-
-    @property
-    def quick_difference(self) -> tuple[float, float] | None:
-        """``(Cp total, ΔC)`` change of this result against the quick
-        estimate, as fractions (``0.05`` = 5 % above); None without one."""
-        if self.quick_cp_total_pf is None or self.quick_delta_c_pf is None:
-            return None
-        if self.quick_cp_total_pf == 0 or self.quick_delta_c_pf == 0:
-            return None
-        return (self.cp_total_pf / self.quick_cp_total_pf - 1.0,
-                self.delta_c_pf / self.quick_delta_c_pf - 1.0)
 
 
 @dataclass(frozen=True)

@@ -1,12 +1,43 @@
-"""What precise mode adds to a report: electrode coupling and slider response.
+"""Field results shared by several stages: per-pad metrics and what precise
+mode adds to a report (electrode coupling and slider response).
 
-Plain frozen records (no matrices, no geometry) so reporters and rules can
-read them without the solver; values in pF and mm.
+``solve`` makes them, ``rules`` judge them, ``decide`` ranks them and the
+reporters show them. Plain frozen records (no matrices, no geometry) so
+those stages can read them without the solver; values in pF and mm.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
+
+
+@dataclass(frozen=True)
+class PadMetrics:
+    """Field-solve results for one sensor, in pF (ratio unitless)."""
+
+    cp_pad_pf: float
+    cp_trace_pf: float
+    cp_total_pf: float
+    delta_c_pf: float
+    delta_ratio: float
+    method: str = "quick"  # quick (axisymmetric) or precise (3-D)
+    notes: tuple[str, ...] = ()
+    #: With ``method == "precise"``: the quick estimate of the same pad, for
+    #: showing the two side by side (None for quick metrics).
+    quick_cp_pad_pf: float | None = None
+    quick_cp_total_pf: float | None = None
+    quick_delta_c_pf: float | None = None
+
+    @property
+    def quick_difference(self) -> tuple[float, float] | None:
+        """``(Cp total, ΔC)`` change of this result against the quick
+        estimate, as fractions (``0.05`` = 5 % above); None without one."""
+        if self.quick_cp_total_pf is None or self.quick_delta_c_pf is None:
+            return None
+        if self.quick_cp_total_pf == 0 or self.quick_delta_c_pf == 0:
+            return None
+        return (self.cp_total_pf / self.quick_cp_total_pf - 1.0,
+                self.delta_c_pf / self.quick_delta_c_pf - 1.0)
 
 
 @dataclass(frozen=True)

@@ -6,10 +6,6 @@ so where it matters and defer to the rules that do govern.
 
 from __future__ import annotations
 
-import dataclasses
-
-from auditor.report.model import Report
-
 MAINS_CAUTION = (
     "Mains power: a touch electrode on a circuit referenced to mains is only as safe as the "
     "insulation between it and the user. The overlay and any creepage and clearance distances "
@@ -22,14 +18,3 @@ MAINS_CAUTION = (
 def cautions_for(power: str) -> tuple[str, ...]:
     """Cautions due for a power preset (``battery``, ``usb``, ``mains`` ...)."""
     return (MAINS_CAUTION,) if "mains" in power.lower() else ()
-
-
-def with_cautions(report: Report) -> Report:
-    """``report`` with the cautions its power preset calls for, unless one on
-    the same subject is already there."""
-    if any("mains" in c.lower() for c in report.cautions):
-        return report  # the pipeline already said it, in its own words
-    missing = cautions_for(report.info.power)
-    if not missing:
-        return report
-    return dataclasses.replace(report, cautions=report.cautions + missing)

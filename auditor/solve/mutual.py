@@ -15,9 +15,9 @@ from dataclasses import replace
 from auditor.config import Config
 from auditor.field.api import MutualSetup, solve_mutual
 from auditor.model.board import Board
-from auditor.pipeline_field import pad_setup_for, significant
-from auditor.report.model import PadMetrics
+from auditor.model.results import PadMetrics
 from auditor.sensors.model import Sensor
+from auditor.solve.setup import pad_setup_for, significant
 
 
 def mutual_partner(sensor: Sensor, sensors: tuple[Sensor, ...]) -> Sensor | None:

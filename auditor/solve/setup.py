@@ -1,7 +1,8 @@
 """From a measured sensor to the field solver's description of it, and the solve.
 
-Kept apart from :mod:`auditor.pipeline` so the mapping can be checked
-without running a solve. What the axisymmetric model cannot hold is said in
+Kept apart from the solves (:mod:`auditor.solve.quick`,
+:mod:`auditor.solve.precise`, :mod:`auditor.solve.mutual`) so the mapping can
+be checked without running one. What the axisymmetric model cannot hold is said in
 the returned notes, never silently dropped.
 
 Choices made here (each also stated in the notes of the pad it affects):
@@ -34,20 +35,19 @@ Choices made here (each also stated in the notes of the pad it affects):
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Mapping
+from collections.abc import Mapping
 from dataclasses import dataclass, replace
 from typing import Literal
 
+from shapely.geometry import Polygon
+
 from auditor.config import Config
-from auditor.errors import UsageError
-from auditor.field.api import PadSetup, PadSolve, solve_pad
-from auditor.field.batch import PadBatch
+from auditor.field.api import PadSetup
 from auditor.field.pad_model import DEFAULT_GROUND_MARGIN_MM
 from auditor.model.board import Board
-from auditor.pipeline_stack import board_layers_from_touch, overlay_with_mask, touch_mask
-from auditor.pipeline_traces import dielectric_between_mm, trace_runs_for
-from auditor.report.model import PadMetrics
 from auditor.sensors.model import LayerShadow, Sensor
+from auditor.solve.stack import board_layers_from_touch, overlay_with_mask, touch_mask
+from auditor.solve.traces import dielectric_between_mm, trace_runs_for
 
 #: A shadow covering less than this share of the pad is left out of the model
 #: (common practice, no source: the copper-under-electrode rule reports it).
@@ -60,9 +60,6 @@ DEFAULT_FINGER_MM = 10.0
 FINGER_ORIGIN = "physics.md §3: 8-10 mm disk model, contact patch 9-11 mm"
 
 SELF_KINDS = ("button", "slider", "wheel", "proximity")
-
-Progress = Callable[[str, int, int], None]
-
 
 @dataclass(frozen=True)
 class FieldInput:
@@ -223,92 +220,6 @@ def snapped_to_finger(setup: PadSetup, notes: list[str]) -> PadSetup:
     return setup
 
 
-def metrics_from_quick(mapped: FieldInput) -> PadMetrics:
-    """Solve one mapped pad with the quick axisymmetric model."""
-    return _quick_metrics(mapped, solve_pad(mapped.setup))
-
-
-def _quick_metrics(mapped: FieldInput, solve: PadSolve) -> PadMetrics:
-    return PadMetrics(solve.cp_pad_pf, solve.cp_trace_pf, solve.cp_total_pf,
-                      solve.delta_c_pf, solve.delta_ratio, "quick",
-                      mapped.notes + solve.notes)
-
-
-class _InOrder:
-    """Reports progress in sensor order as results become ready (parallel
-    quick solves finish in any order)."""
-
-    def __init__(self, sensors: tuple[Sensor, ...], progress: Progress | None) -> None:
-        self._sensors, self._progress = sensors, progress
-        self._finished: set[str] = set()
-        self._reported = 0
-
-    def finish(self, name: str) -> None:
-        self._finished.add(name)
-        while (self._reported < len(self._sensors)
-               and self._sensors[self._reported].name in self._finished):
-            self._reported += 1
-            if self._progress is not None:
-                self._progress(self._sensors[self._reported - 1].name, self._reported,
-                               len(self._sensors))
-
-
-class QuickSolves:
-    """The quick solves of an audit, started while it is still measuring.
-
-    :meth:`add` maps each measured sensor the disk model fits to its pad
-    setup and queues the solve (:class:`auditor.field.batch.PadBatch`:
-    helper processes start on it at once when a core is idle); equal setups
-    are solved once. :meth:`metrics` waits for them all.
-    """
-
-    def __init__(self, board: Board, config: Config,
-                 thresholds: Mapping[str, float | int | bool] | None = None,
-                 workers: int | None = None) -> None:
-        self._board, self._config, self._limits = board, config, thresholds or {}
-        self._batch = PadBatch(workers)
-        self._mapped: dict[str, FieldInput] = {}
-
-    def add(self, sensor: Sensor) -> None:
-        """Map and queue one sensor (ignored unless the quick model fits it)."""
-        if (sensor.kind not in SELF_KINDS or sensor.area_mm2 <= 0 or sensor.name in self._mapped
-                or quick_unfit_reason(sensor)):
-            return
-        mapped = pad_setup_for(sensor, self._board, self._config, self._limits)
-        self._mapped[sensor.name] = mapped
-        self._batch.add(mapped.setup)
-
-    def metrics(self, finished: Callable[[str], None] | None = None) -> dict[str, PadMetrics]:
-        """Metrics of every sensor added, by name; ``finished`` is called
-        with each sensor's name as its solve is done."""
-        names: dict[PadSetup, list[str]] = {}
-        for name, field_input in self._mapped.items():
-            names.setdefault(field_input.setup, []).append(name)
-
-        def solved(setup: PadSetup) -> None:
-            for name in names[setup]:
-                if finished is not None:
-                    finished(name)
-
-        solves = self._batch.results(solved)
-        return {name: _quick_metrics(field_input, solves[field_input.setup])
-                for name, field_input in self._mapped.items()}
-
-
-def _precise_or_quick(sensor: Sensor, board: Board, config: Config, mapped: FieldInput,
-                      sensors: tuple[Sensor, ...]) -> PadMetrics:
-    """The precise metrics, or the quick ones with the reason when the 3-D
-    model cannot take this electrode (e.g. a layer missing from the stackup)."""
-    from auditor.pipeline_precise import metrics_from_precise
-
-    try:
-        return metrics_from_precise(sensor, board, config, mapped, sensors)
-    except (UsageError, KeyError) as exc:
-        quick = metrics_from_quick(mapped)
-        return replace(quick, notes=(f"precise solve not possible ({exc}); quick "
-                                     "estimate shown",) + quick.notes)
-
-
 #: Below this share of its outline's area an electrode is a loop or comb, not a
 #: plate, and an equal-area disk misstates it badly: on the demo's proximity
 #: loop the quick disk gave ΔC/Cp 48.6 % where the 3-D solve gives 2.6 %.
@@ -326,63 +237,7 @@ def quick_unfit_reason(sensor: Sensor) -> str:
 
 
 def _outline_area_mm2(sensor: Sensor) -> float:
-    from shapely.geometry import Polygon
-
     geometry = sensor.geometry
     polygons = getattr(geometry, "geoms", [geometry])
     return float(sum(Polygon(poly.exterior).area for poly in polygons
                      if getattr(poly, "exterior", None) is not None))
-
-
-def unsolved_reasons(sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetrics],
-                     precise: bool = False) -> dict[str, str]:
-    """For each electrode the field step left without metrics, why."""
-    reasons: dict[str, str] = {}
-    for sensor in sensors:
-        if sensor.name in metrics:
-            continue
-        reason = "" if precise else quick_unfit_reason(sensor)
-        if not reason and sensor.kind == "mutual-tx":
-            reason = "transmit electrode: its pair's receive electrode carries Cm"
-        reasons[sensor.name] = reason or "no field model for this electrode"
-    return reasons
-
-
-def solve_sensors(board: Board, sensors: tuple[Sensor, ...], config: Config, *,
-                  precise: bool = False, progress: Progress | None = None,
-                  thresholds: Mapping[str, float | int | bool] | None = None,
-                  quick: QuickSolves | None = None) -> dict[str, PadMetrics]:
-    """Field metrics per sensor name (``method`` "quick" or "precise").
-
-    Self-capacitance electrodes (button, slider, wheel, proximity) are
-    solved; a mutual receive electrode gets the Cm of its pair; a
-    transmit electrode, a loop the quick disk model cannot represent
-    (:func:`quick_unfit_reason`), or a sensor that cannot be mapped, gets no
-    entry (the report shows it unsolved; :func:`unsolved_reasons` says why)
-    — nothing is made up. The quick solves run first, each distinct setup
-    once; ``quick`` holds them when they were started while measuring.
-    ``progress`` is called as ``progress(sensor_name, done, total)``, in
-    sensor order.
-    """
-    limits = thresholds or {}
-    in_order = _InOrder(sensors, progress)
-    out: dict[str, PadMetrics] = {}
-    if not precise:
-        quick = quick or QuickSolves(board, config, limits)
-        for sensor in sensors:
-            quick.add(sensor)  # those added while measuring are not added again
-        out = quick.metrics(in_order.finish)
-    for sensor in sensors:
-        if sensor.name in out:
-            pass
-        elif precise and sensor.kind in SELF_KINDS and sensor.area_mm2 > 0:
-            mapped = pad_setup_for(sensor, board, config, limits)
-            out[sensor.name] = _precise_or_quick(sensor, board, config, mapped, sensors)
-        elif sensor.kind == "mutual-rx":
-            from auditor.pipeline_mutual import metrics_for_mutual, mutual_partner
-
-            tx = mutual_partner(sensor, sensors)
-            if tx is not None:
-                out[sensor.name] = metrics_for_mutual(sensor, tx, board, config, limits)
-        in_order.finish(sensor.name)
-    return {s.name: out[s.name] for s in sensors if s.name in out}

@@ -13,11 +13,12 @@ from pathlib import Path
 
 import pytest
 
+from auditor.audit import AuditOptions, measuring_selection, resolve_setup
 from auditor.config import Config
-from auditor.pipeline import AuditOptions, measuring_selection, resolve_setup
-from auditor.pipeline_field import pad_setup_for, solve_sensors
 from auditor.read import read_board
 from auditor.sensors import find_sensors, measure
+from auditor.solve.dispatch import solve_sensors
+from auditor.solve.setup import pad_setup_for
 from fixtures.make_rule_boards import Design, board_text
 
 
@@ -123,7 +124,7 @@ def test_mutual_pair_maps_to_disk_and_ring(boards, monkeypatch) -> None:  # type
     d 10 mm, gap 6 mm, ring of the same 78.41 mm^2 from r = 11 mm:
     width sqrt(11^2 + 78.41/pi) - 11 = 1.081 mm. The receiver gets Cm, the
     transmitter no entry."""
-    import auditor.pipeline_mutual as pf
+    import auditor.solve.mutual as pf
     from auditor.field.api import MutualSolve
     from auditor.field.matrix import CapacitanceMatrix
 
@@ -166,7 +167,7 @@ def test_solves_started_while_measuring_equal_solves_after(boards) -> None:  # t
     # (before the neighbour marks of all sensors are known); the numbers
     # must be exactly those of solving the finished sensors (common
     # practice, no source: the same computation in another order).
-    from auditor.pipeline import _measured
+    from auditor.audit import _measured
 
     board, sensors, config = boards["base"]
     setup = resolve_setup(Path(board.path), AuditOptions())

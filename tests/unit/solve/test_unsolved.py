@@ -11,9 +11,10 @@ from __future__ import annotations
 
 from shapely.geometry import Point
 
-from auditor.pipeline_field import quick_unfit_reason, unsolved_reasons
-from auditor.report.model import PadMetrics
+from auditor.model.results import PadMetrics
 from auditor.sensors.model import Sensor
+from auditor.solve.dispatch import unsolved_reasons
+from auditor.solve.setup import quick_unfit_reason
 
 
 def _sensor(name: str, geometry: object, kind: str = "button") -> Sensor:
@@ -52,8 +53,8 @@ def test_broken_sense_path_gives_no_numbers(tmp_path) -> None:  # type: ignore[n
     # Shrinking BTN2's pad (line 1050 of the demo) detaches it from its trace.
     # Without the trace its Cp would be too low and its ratio too high, so a
     # broken route would look like an improvement: it must be unsolved instead.
+    from auditor.audit import UNFOLLOWED_REASON, AuditOptions, run_audit
     from auditor.demo import demo_board_path, demo_config_path
-    from auditor.pipeline import UNFOLLOWED_REASON, AuditOptions, run_audit
 
     lines = demo_board_path().read_text("utf-8").splitlines(keepends=True)
     assert "(size 8 8)" in lines[1049]

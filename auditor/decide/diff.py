@@ -12,7 +12,8 @@ from __future__ import annotations
 from collections import Counter
 from dataclasses import dataclass
 
-from auditor.report.model import DecidedFinding, PadMetrics, Report
+from auditor.decide.records import DecidedFinding, Report
+from auditor.model.results import PadMetrics
 from auditor.rules.finding import Severity
 
 
