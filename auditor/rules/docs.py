@@ -1,6 +1,6 @@
 """The rule catalogue as text: ``padaudit rules`` and ``docs/rules.md``.
 
-``python -m auditor.rules.docs > docs/rules.md`` regenerates the document; a
+``python -m auditor.cli.rules_doc > docs/rules.md`` regenerates the document; a
 test checks the committed copy is current.
 """
 
@@ -37,7 +37,7 @@ def rules_markdown(profile_name: str = "default") -> str:
     """The whole catalogue as Markdown."""
     profile = load_profile(profile_name)
     out = ["# padaudit rules", "",
-           "Generated from the rule registry by `python -m auditor.rules.docs`; do not edit.",
+           "Generated from the rule registry by `python -m auditor.cli.rules_doc`; do not edit.",
            f"Thresholds are those of the `{profile.name}` profile (`rules/{profile.name}.toml`).",
            "", "| Rule | Severity | Title |", "|------|----------|-------|"]
     specs = all_rules()
@@ -53,8 +53,3 @@ def rules_markdown(profile_name: str = "default") -> str:
                     for line in threshold_lines(spec, profile)]
     return "\n".join(out) + "\n"
 
-
-if __name__ == "__main__":
-    import sys
-
-    sys.stdout.write(rules_markdown())

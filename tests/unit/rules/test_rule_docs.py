@@ -12,7 +12,7 @@ DOC = Path(__file__).resolve().parents[3] / "docs" / "rules.md"
 
 def test_rules_doc_is_current() -> None:
     assert DOC.read_text(encoding="utf-8") == rules_markdown(), (
-        "regenerate: python -m auditor.rules.docs > docs/rules.md")
+        "regenerate: python -m auditor.cli.rules_doc > docs/rules.md")
 
 
 def test_rules_doc_mentions_every_rule() -> None:
