@@ -2,7 +2,10 @@
 
 The package is a pipeline of stages, one subpackage each::
 
-    read -> model -> sensors -> rules -> field -> decide -> report
+    read -> sensors -> solve (-> field) -> rules -> decide -> report -> cli
+
+``model`` holds the records the stages share; ``audit`` runs one audit end to
+end (see DEVELOPERS.md, "Layout").
 
 ``cli`` is the only place that parses arguments, picks exit codes and touches
 the terminal.

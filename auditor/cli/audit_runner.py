@@ -43,7 +43,7 @@ def gated_options(args: argparse.Namespace) -> AuditOptions:
                                accept_all=bool(getattr(args, "write_baseline", None)))
 
 
-def _pipeline_auditor(args: argparse.Namespace) -> AuditFn:
+def _board_auditor(args: argparse.Namespace) -> AuditFn:
     from auditor.audit import run_audit  # start-up speed: see TYPE_CHECKING above
 
     options = options_from_args(args)
@@ -55,7 +55,7 @@ def _pipeline_auditor(args: argparse.Namespace) -> AuditFn:
 
 
 #: Replaceable in tests: ``args -> (board path -> Report)``.
-AUDITOR_FACTORY: Callable[[argparse.Namespace], AuditFn] = _pipeline_auditor
+AUDITOR_FACTORY: Callable[[argparse.Namespace], AuditFn] = _board_auditor
 
 
 def auditor_for(args: argparse.Namespace) -> AuditFn:

@@ -72,7 +72,7 @@ def _write_baseline(report: Report, path: str) -> None:
 
 
 def _with_board(report: Report) -> Report:
-    """The report with its board for the picture. The pipeline attaches it;
+    """The report with its board for the picture. The audit attaches it;
     when it has not, read the file again (the picture is then still complete)."""
     if report.board is not None or not Path(report.info.board_path).is_file():
         return report
@@ -108,7 +108,7 @@ def emit(report: Report, args: argparse.Namespace, *, audit: AuditFn | None = No
     args:
         Parsed options from :func:`add_report_options` (missing ones default).
     audit:
-        For ``--against``: how to audit the old board (default: the pipeline
+        For ``--against``: how to audit the old board (default: the audit
         with the same options).
     """
     out = stdout or sys.stdout

@@ -56,13 +56,6 @@ def dumps(baseline: Baseline) -> str:
     return json.dumps(doc, indent=2, sort_keys=True) + "\n"
 
 
-def write_baseline(path: str | Path, report: Report) -> Baseline:
-    """Write a baseline of every finding in ``report`` that is not waived."""
-    baseline = Baseline.of(report.findings)
-    Path(path).write_text(dumps(baseline), encoding="utf-8")
-    return baseline
-
-
 def _strings(value: object, path: Path, what: str) -> tuple[str, ...]:
     if not isinstance(value, list) or not all(isinstance(v, str) for v in value):
         raise ConfigError(path, f"baseline entry: {what} must be a list of strings")

@@ -79,7 +79,7 @@ class RunInfo:
 
 @dataclass(frozen=True)
 class Report:
-    """Everything a reporter needs. Ordered deterministically by the pipeline."""
+    """Everything a reporter needs. Ordered deterministically by the audit."""
 
     info: RunInfo
     sensors: tuple[SensorResult, ...]

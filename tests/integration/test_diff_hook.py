@@ -122,6 +122,7 @@ def test_hook_run_audits_the_staged_version(tmp_path: Path, stand_in: None,
     assert main(["hook", "run", "panel.kicad_pcb"]) == EXIT_CLEAN  # the file on disk
 
 
+@pytest.mark.slow
 def test_real_commit_through_the_installed_hook(tmp_path: Path) -> None:
     """git itself runs the hook: a commit without boards passes; a staged file
     padaudit cannot audit blocks the commit (exit 2, whatever the pipeline)."""

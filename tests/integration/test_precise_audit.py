@@ -24,6 +24,9 @@ from auditor.decide.records import Report
 from auditor.report.render import render
 from fixtures.make_rule_boards import Design, board_text
 
+#: Every test here runs 3-D solves (seconds each): not in the quick loop.
+pytestmark = pytest.mark.slow
+
 NS = "{http://www.w3.org/2000/svg}"
 
 

@@ -66,6 +66,7 @@ def _cp_and_delta(setup: PadSetup, eta: float) -> tuple[float, float]:
     return cp, cp_touched - cp
 
 
+@pytest.mark.slow
 def test_default_mesh_within_one_percent_of_refined_solve() -> None:
     # Reference: eta 0.05 (3x finer in each direction than the default 0.15).
     solve = solve_pad(BUTTON)
@@ -118,6 +119,7 @@ def test_pair_falls_back_to_two_factorisations_without_grid_order() -> None:
         np.testing.assert_allclose(a, b, rtol=1e-9, atol=1e-12 * abs(a).max())
 
 
+@pytest.mark.slow
 def test_parallel_batch_gives_the_same_bits_as_serial() -> None:
     setups = [BUTTON, PadSetup(pad_area_mm2=50.0, gap_mm=0.5),
               PadSetup(pad_area_mm2=80.0, gap_mm=1.0, plane_depth_mm=1.6,

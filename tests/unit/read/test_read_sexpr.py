@@ -149,6 +149,7 @@ def _write(tree: tuple[str, object]) -> str:
     return "(" + " ".join(_write(t) for t in value) + ")"  # type: ignore[attr-defined]
 
 
+@pytest.mark.slow
 @settings(max_examples=150, deadline=None)
 @given(st.lists(_TREES, max_size=6))
 def test_random_trees_parse_like_sexpdata(items: list[tuple[str, object]]) -> None:

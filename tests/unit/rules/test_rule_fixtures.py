@@ -23,6 +23,7 @@ FIXTURES = Path(__file__).resolve().parents[3] / "fixtures" / "rules"
 MANIFEST = json.loads((FIXTURES / "manifest.json").read_text(encoding="utf-8"))
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("name", sorted(MANIFEST["cases"]))
 def test_fixture_board_gives_expected_rules(name: str) -> None:
     case = MANIFEST["cases"][name]
@@ -33,6 +34,7 @@ def test_fixture_board_gives_expected_rules(name: str) -> None:
     assert not set(case["absent"]) & found, f"unexpected {set(case['absent']) & found}"
 
 
+@pytest.mark.slow
 def test_generator_output_still_behaves_as_committed(tmp_path: Path) -> None:
     """Fresh output of the generator (the writer's zone filling may change the
     bytes) gives the manifest's result too, so the committed boards are not

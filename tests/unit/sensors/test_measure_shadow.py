@@ -59,6 +59,7 @@ def _shadow(board: Board) -> tuple[Sensor, LayerShadow]:
     return sensor, shadow
 
 
+@pytest.mark.slow
 def test_hatched_ground_under_the_whole_pad(tmp_path: Path) -> None:
     sensor, shadow = _shadow(_board(tmp_path, "hatched", "hatched"))
     assert sensor.area_mm2 == pytest.approx(SIDE * SIDE, rel=1e-9)
@@ -77,6 +78,7 @@ def test_solid_ground_under_half_the_pad(tmp_path: Path) -> None:
     assert shadow.fill_ratio == pytest.approx(1.0, abs=1e-6)
 
 
+@pytest.mark.slow
 def test_solid_patch_inside_a_hatched_pour_is_solid(tmp_path: Path) -> None:
     _, shadow = _shadow(_board(tmp_path, "patch", "patch"))
     assert shadow.fill == "solid"
@@ -84,6 +86,7 @@ def test_solid_patch_inside_a_hatched_pour_is_solid(tmp_path: Path) -> None:
     assert shadow.fill_ratio == pytest.approx(1.0, abs=1e-6)
 
 
+@pytest.mark.slow
 def test_small_pad_takes_the_hatch_settings(tmp_path: Path) -> None:
     # A 3 mm pad covers 9 mm², fewer than four 1.85 mm cells (13.7 mm²): the
     # local coverage would depend on where the grid falls, so the closed form

@@ -26,6 +26,9 @@ from auditor.solve.dispatch import solve_sensors
 from auditor.solve.extras import precise_extras
 from fixtures.make_rule_boards import Design, board_text
 
+#: Every test here runs 3-D solves (seconds each): not in the quick loop.
+pytestmark = pytest.mark.slow
+
 PRECISE_RULES = ("crosstalk-high", "slider-dead-zone", "slider-reversal", "slider-nonlinear")
 
 

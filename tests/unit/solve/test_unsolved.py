@@ -9,6 +9,7 @@ tests/unit/field/precise.
 
 from __future__ import annotations
 
+import pytest
 from shapely.geometry import Point
 
 from auditor.model.results import PadMetrics
@@ -49,6 +50,7 @@ def test_reasons_only_for_unsolved_electrodes() -> None:
     assert "loop" not in unsolved_reasons(sensors, solved, precise=True)["PROX"]
 
 
+@pytest.mark.slow
 def test_broken_sense_path_gives_no_numbers(tmp_path) -> None:  # type: ignore[no-untyped-def]
     # Shrinking BTN2's pad (line 1050 of the demo) detaches it from its trace.
     # Without the trace its Cp would be too low and its ratio too high, so a
