@@ -30,9 +30,8 @@ from auditor.rules.registry import all_rules, run_rules
 from auditor.sensors import find_sensors, mark_sense_neighbours, measure_each
 from auditor.sensors.model import Sensor, name_order
 from auditor.sensors.selection import SensorSelection
+from auditor.solve.dispatch import QuickSolves, unsolved_reasons
 from auditor.solve.dispatch import solve_sensors as field_solve
-from auditor.solve.dispatch import unsolved_reasons
-from auditor.solve.quick import QuickSolves
 
 if TYPE_CHECKING:  # the precise solver pulls in scipy.interpolate: load it only when used
     from auditor.model.results import PreciseExtras

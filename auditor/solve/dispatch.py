@@ -109,3 +109,6 @@ def solve_sensors(board: Board, sensors: tuple[Sensor, ...], config: Config, *,
                 out[sensor.name] = metrics_for_mutual(sensor, tx, board, config, limits)
         in_order.finish(sensor.name)
     return {s.name: out[s.name] for s in sensors if s.name in out}
+
+
+__all__ = ["Progress", "QuickSolves", "solve_sensors", "unsolved_reasons"]
