@@ -2,7 +2,13 @@
 (profile levels, severity overrides, waivers, baseline)."""
 
 from auditor.decide.policy import Decision, Policy, decide, finding_order, mark_baseline
-from auditor.decide.verdict import sensitivity_ranks, sensor_verdict
+from auditor.decide.verdict import (
+    ELECTRODE_VERDICTS,
+    electrode_verdict,
+    sensitivity_ranks,
+    sensor_strength,
+)
 
 __all__ = ["Decision", "Policy", "decide", "finding_order", "mark_baseline",
-           "sensitivity_ranks", "sensor_verdict"]
+           "sensitivity_ranks", "sensor_strength", "ELECTRODE_VERDICTS",
+           "electrode_verdict"]

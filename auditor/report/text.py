@@ -18,7 +18,16 @@ from rich.table import Table
 from rich.text import Text
 
 from auditor.report.model import DecidedFinding, Report, RuleInfo, SensorResult
+from auditor.report.text_fit import (
+    Cell,
+    Column,
+    fitted_table,
+    print_blocks,
+    print_note,
+    stream_width,
+)
 from auditor.report.text_precise import render_precise_sections
+from auditor.report.verdicts import electrode_verdicts
 from auditor.rules.finding import Severity
 from auditor.sensors.model import name_order
 
@@ -26,7 +35,14 @@ ORDERS: tuple[str, ...] = ("weakest", "rank")
 _BAR_CELLS = 10
 _FILE_WIDTH = 100  # columns when writing to a file or pipe
 _EIGHTHS = " ▏▎▍▌▋▊▉█"
-_VERDICT_STYLE = {"ok": "green", "weak": "yellow", "fail": "bold red", "unsolved": "magenta"}
+_STRENGTH_STYLE = {"ok": "green", "weak": "yellow", "fail": "bold red", "unsolved": "magenta"}
+_VERDICT_STYLE = {"ok": "green", "waived": "dim", "warning": "yellow", "error": "bold red",
+                  "unsolved": "magenta"}
+_NOTE = ("capacitances in pF; ΔC is the change under a finger; signal: ΔC against the "
+         "profile's limits; verdict: the worst finding on the electrode")
+_SHORT_NOTE = ("pad, trace, Cp: the pad's, the trace's and the total capacitance in pF; "
+               "ΔC is the change under a finger; sig: ΔC against the profile's limits; "
+               "verdict: the worst finding on the electrode")
 _SEVERITY_STYLE = {Severity.ERROR: "bold red", Severity.WARNING: "yellow", Severity.INFO: "cyan"}
 
 
@@ -96,6 +112,33 @@ def _ref_or_net(r: SensorResult) -> str:
         "…" if len(s.refs) > 1 else "")
 
 
+#: The electrode table's columns; short headers are used when the full ones
+#: do not fit (the footnote then spells them out).
+_SENSOR_COLUMNS = (
+    Column("rank", "#", "right"), Column("sensor"), Column("ref/net", "ref"),
+    Column("kind"), Column("area mm²", "mm²", "right"), Column("Cp pad", "pad", "right"),
+    Column("Cp trace", "trace", "right"), Column("Cp total", "Cp", "right"),
+    Column("ΔC", justify="right"), Column("ΔC/Cp", justify="right"), Column("", bar=True),
+    Column("signal", "sig"), Column("verdict"),
+)
+#: Blocks lead with the name, reference and kind.
+_BLOCK_ORDER = (1, 2, 3, 0, 4, 5, 6, 7, 8, 9, 10, 11, 12)
+
+
+def _sensor_row(r: SensorResult, best: float, verdict: str) -> list[Cell]:
+    s, m = r.sensor, r.metrics
+    cells: list[Cell] = [str(r.rank) if m else "–", s.name, _ref_or_net(r), s.kind,
+                         f"{s.area_mm2:.1f}"]
+    if m is None:
+        cells += ["–"] * 5 + [""]
+    else:
+        cells += [_pf(m.cp_pad_pf), _pf(m.cp_trace_pf), _pf(m.cp_total_pf),
+                  f"{m.delta_c_pf:.3f}", f"{m.delta_ratio * 100:.2f} %",
+                  ratio_bar(m.delta_ratio, best)]
+    return cells + [Text(r.strength, style=_STRENGTH_STYLE.get(r.strength, "")),
+                    Text(verdict, style=_VERDICT_STYLE.get(verdict, ""))]
+
+
 def _sensor_table(console: Console, report: Report, order: str) -> None:
     rows = ordered_sensors(report.sensors, order)
     title = "weakest first" if order == "weakest" else "most sensitive first"
@@ -104,28 +147,18 @@ def _sensor_table(console: Console, report: Report, order: str) -> None:
     if not rows:
         console.print("  no electrodes found: nothing was solved or judged")
         return
-    table = Table(box=None, pad_edge=False, header_style="bold", show_edge=False,
-                  collapse_padding=True)
-    for name, justify in (("rank", "right"), ("sensor", "left"), ("ref/net", "left"),
-                          ("kind", "left"),
-                          ("area mm²", "right"), ("Cp pad", "right"), ("Cp trace", "right"),
-                          ("Cp total", "right"), ("ΔC", "right"), ("ΔC/Cp", "right"),
-                          ("", "left"), ("verdict", "left")):
-        table.add_column(name, justify=justify, no_wrap=True)  # type: ignore[arg-type]
     best = max((r.metrics.delta_ratio for r in rows if r.metrics), default=0.0)
-    for r in rows:
-        s, m = r.sensor, r.metrics
-        cells = [str(r.rank) if m else "–", s.name, _ref_or_net(r), s.kind,
-                 f"{s.area_mm2:.1f}"]
-        if m is None:
-            cells += ["–"] * 5 + [""]
-        else:
-            cells += [_pf(m.cp_pad_pf), _pf(m.cp_trace_pf), _pf(m.cp_total_pf),
-                      f"{m.delta_c_pf:.3f}", f"{m.delta_ratio * 100:.2f} %",
-                      ratio_bar(m.delta_ratio, best)]
-        table.add_row(*cells, Text(r.verdict, style=_VERDICT_STYLE.get(r.verdict, "")))
-    console.print(table)
-    console.print(Text("  capacitances in pF; ΔC is the change under a finger", style="dim"))
+    verdicts = electrode_verdicts(report)
+    cells = [_sensor_row(r, best, verdicts[r.sensor.name]) for r in rows]
+    table = fitted_table(console, _SENSOR_COLUMNS, cells)
+    if table is None:
+        columns = [_SENSOR_COLUMNS[i] for i in _BLOCK_ORDER]
+        print_blocks(console, columns, [[row[i] for i in _BLOCK_ORDER] for row in cells],
+                     title_columns=3)
+    else:
+        console.print(table)
+    short = table is not None and table.columns[5].header == _SENSOR_COLUMNS[5].short
+    print_note(console, _SHORT_NOTE if short else _NOTE)
 
 
 def _where(d: DecidedFinding) -> str:
@@ -266,8 +299,7 @@ def render_text(report: Report, stream: TextIO, colour: bool, *, order: str = "w
         Columns; ``None`` asks the terminal, or 100 when not writing to one.
     """
     if width is None:
-        probe = Console(file=stream)
-        width = probe.width if probe.is_terminal else _FILE_WIDTH
+        width = stream_width(stream, _FILE_WIDTH)
     buffer = io.StringIO()
     console = Console(file=buffer, force_terminal=colour, no_color=not colour,
                       color_system="standard" if colour else None, highlight=False,
