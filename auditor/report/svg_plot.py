@@ -11,6 +11,8 @@ from collections.abc import Callable
 from html import escape
 from typing import TYPE_CHECKING
 
+from auditor.report.svg_shapes import number
+
 if TYPE_CHECKING:
     from auditor.field.precise.results import SegmentScan
 
@@ -22,8 +24,7 @@ PLOT_WIDTH_FONTS = 26.0
 PLOT_HEIGHT_FONTS = 14.0
 
 
-def _n(value: float) -> str:
-    return f"{value:.3f}".rstrip("0").rstrip(".")
+_n = number
 
 
 def _text(x: float, y: float, size: float, content: str, **attrs: str) -> str:
