@@ -22,7 +22,7 @@ from shapely.geometry.base import BaseGeometry
 from shapely.ops import unary_union
 
 from auditor.report.model import Report, SensorResult
-from auditor.report.svg_focus import focus_marks
+from auditor.report.svg_focus import HATCH_ID, focus_marks, hatch_pattern
 from auditor.report.svg_labels import EM_WIDTH, Label, place_labels
 from auditor.report.svg_marks import (
     SEVERITY_COLOURS,
@@ -169,7 +169,7 @@ def _legend_keys(report: Report) -> list[tuple[str, str]]:
     if report.board is not None:
         keys += [(_LAYER_COLOURS[i % len(_LAYER_COLOURS)], f"copper {layer}")
                  for i, layer in enumerate(report.board.copper_layers)]
-        keys += [("#000000", "other net at fault (dashed)")]
+        keys += [(f"url(#{HATCH_ID})", "other net at fault (hatched)")]
     keys += [(SEVERITY_COLOURS[s], f"finding: {s.label} (and the copper at fault)")
              for s in sorted(Severity, reverse=True)]
     return keys + [("#ffffff", "hollow marker: waived or in the baseline")]
@@ -239,7 +239,7 @@ def to_svg(report: Report) -> str:
                  legend_bottom - y0 + 2 * margin)
     vx, vy, vw = x0 - margin, y0 - margin, x1 - x0 + 3 * margin + legend_w
     title = f"padaudit: {Path(report.info.board_path).name}: {verdict_line(report)[0]}"
-    body = [f"<title>{escape(title)}</title>",
+    body = [f"<title>{escape(title)}</title>", hatch_pattern(font * 0.35),
             f'<rect x="{_n(vx)}" y="{_n(vy)}" width="{_n(vw)}" height="{_n(height)}" '
             'fill="#ffffff"/>',
             *_copper(report, thin), *_outline(report, size / 800),

@@ -23,6 +23,16 @@ from auditor.report.svg_shapes import number, shape_path
 #: Radius around a finding's point within which its copper is drawn, in mm,
 #: unless the finding measured a longer run (common practice, no source).
 REACH_MM = 6.0
+HATCH_ID = "other-net"
+
+
+def hatch_pattern(pitch: float) -> str:
+    """The black hatch that fills another net's copper (lines ``pitch`` apart),
+    so the colour underneath still shows."""
+    return (f'<defs><pattern id="{HATCH_ID}" width="{number(pitch)}" height="{number(pitch)}" '
+            'patternUnits="userSpaceOnUse" patternTransform="rotate(45)">'
+            f'<line x1="0" y1="0" x2="0" y2="{number(pitch)}" stroke="#000000" '
+            f'stroke-width="{number(pitch * 0.3)}"/></pattern></defs>')
 
 
 def _reach(d: DecidedFinding) -> float:
@@ -46,8 +56,8 @@ def _other_net_marks(board: Board, d: DecidedFinding, sensor: SensorResult,
     area = (sensor.sensor.geometry if sensor.sensor.geometry.contains(spot)
             else spot.buffer(_reach(d)))
     colour = SEVERITY_COLOURS[d.severity]
-    out = [shape_path(_net_copper(board, f.layer, others, area), fill="#000000",
-                      opacity=0.35, stroke="#000000", stroke_width=width,
+    out = [shape_path(_net_copper(board, f.layer, others, area), fill=f"url(#{HATCH_ID})",
+                      stroke="#000000", stroke_width=width,
                       stroke_dasharray=f"{number(width * 4)} {number(width * 3)}")]
     if area is not sensor.sensor.geometry:
         out.append(shape_path(_net_copper(board, f.layer, own, area), fill=colour,
