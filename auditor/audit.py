@@ -16,7 +16,7 @@ from typing import TYPE_CHECKING
 
 from auditor import __version__
 from auditor.config import Config, discover_config, with_overrides
-from auditor.decide import Policy, decide, sensitivity_ranks, sensor_verdict
+from auditor.decide import Policy, decide, sensitivity_ranks, sensor_strength
 from auditor.decide.baseline import Baseline, apply_baseline, load_baseline
 from auditor.decide.cautions import cautions_for
 from auditor.decide.records import Report, RuleInfo, RunInfo, SensorResult
@@ -260,7 +260,7 @@ def _sensor_results(sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetric
                     thresholds: Mapping[str, ThresholdValue]) -> tuple[SensorResult, ...]:
     ranks = sensitivity_ranks(metrics)
     return tuple(SensorResult(s, metrics.get(s.name), ranks.get(s.name, 0),
-                              sensor_verdict(metrics.get(s.name), thresholds))
+                              sensor_strength(metrics.get(s.name), thresholds))
                  for s in sensors)
 
 

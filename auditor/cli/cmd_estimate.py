@@ -16,6 +16,7 @@ import sys
 from dataclasses import dataclass
 from typing import Any
 
+from auditor.cli.wrap import write_lines
 from auditor.errors import UsageError
 from auditor.field.api import BoardLayer, PadSetup, PadSolve, solve_pad
 from auditor.field.circuit import POWER_PRESETS
@@ -248,8 +249,7 @@ def run(args: argparse.Namespace) -> int:
         for caution in cautions:
             sys.stderr.write(f"padaudit: {caution}\n")
         return 0
-    lines = _text(records, setups[0], overlay) + cautions
-    sys.stdout.write("\n".join(lines) + "\n")
+    write_lines(sys.stdout, _text(records, setups[0], overlay) + cautions)
     return 0
 
 

@@ -13,6 +13,7 @@ import sys
 from collections.abc import Sequence
 from typing import Any
 
+from auditor.cli.wrap import write_lines
 from auditor.sensors.find import Rejected, find_sensors
 from auditor.sensors.measure import measure
 from auditor.sensors.model import Sensor
@@ -90,8 +91,8 @@ def run(args: argparse.Namespace) -> int:
         document["notes"] = notes
         sys.stdout.write(json.dumps(document, sort_keys=True, indent=2) + "\n")
     else:
-        sys.stdout.write(sensors_text(args.board, sensors, rejects))
-        sys.stdout.write("".join(f"  note: {n}\n" for n in notes))
+        write_lines(sys.stdout, sensors_text(args.board, sensors, rejects).splitlines()
+                    + [f"  note: {n}" for n in notes])
     if not sensors:
         sys.stderr.write(f"padaudit: no sense electrodes found on {args.board}; "
                          f"{CONFIG_HINT}\n")

@@ -16,13 +16,14 @@ from typing import TYPE_CHECKING, Any, TextIO
 
 from auditor.decide.records import DecidedFinding, Report, SensorResult
 from auditor.model.results import PadMetrics
+from auditor.report.verdicts import electrode_verdicts
 from auditor.sensors.model import SensePath, Surroundings
 
 if TYPE_CHECKING:
     from auditor.model.results import CouplingTable, PreciseExtras, SegmentScan
 
 #: Bumped when a field is removed or changes meaning; additions keep it.
-SCHEMA_VERSION = 1
+SCHEMA_VERSION = 2
 
 
 def rounded(value: float | None) -> float | None:
@@ -115,13 +116,14 @@ def _surroundings(s: Surroundings | None) -> dict[str, Any] | None:
     }
 
 
-def _sensor(r: SensorResult) -> dict[str, Any]:
+def _sensor(r: SensorResult, verdict: str) -> dict[str, Any]:
     s = r.sensor
     return {
         "name": s.name, "kind": s.kind, "nets": list(s.nets), "refs": list(s.refs),
         "layer": s.layer, "area_mm2": rounded(s.area_mm2), "x_mm": rounded(s.x_mm),
         "y_mm": rounded(s.y_mm), "reason": s.reason, "group": s.group, "index": s.index,
-        "exposed": s.exposed, "pasted": s.pasted, "rank": r.rank, "verdict": r.verdict,
+        "exposed": s.exposed, "pasted": s.pasted, "rank": r.rank, "verdict": verdict,
+        "strength": r.strength,
         "metrics": _metrics(r.metrics), "path": _path(s.path),
         "surroundings": _surroundings(s.surroundings),
     }
@@ -150,6 +152,7 @@ def to_document(report: Report) -> dict[str, Any]:
     """The report as plain JSON-ready data (schema version :data:`SCHEMA_VERSION`)."""
     info = report.info
     failing_ids = {id(d) for d in report.failing}
+    verdicts = electrode_verdicts(report)
     return {
         "schema_version": SCHEMA_VERSION,
         "tool": {"name": "padaudit", "version": info.tool_version},
@@ -164,7 +167,7 @@ def to_document(report: Report) -> dict[str, Any]:
             "findings": _count_by_severity(report.findings),
             "failing": len(failing_ids),
         },
-        "sensors": [_sensor(r) for r in report.sensors],
+        "sensors": [_sensor(r, verdicts[r.sensor.name]) for r in report.sensors],
         "findings": [_finding(d, id(d) in failing_ids) for d in report.findings],
         "rules": [
             {"rule_id": r.rule_id, "title": r.title, "rationale": r.rationale, "fix": r.fix,
