@@ -15,7 +15,7 @@ from dataclasses import replace
 from pathlib import Path
 from typing import Any, cast
 
-from auditor.config.model import POWER_CHOICES, TOUCH_SIDES, Config, Overlay, Power, TouchSide
+from auditor.config.model import Config, Overlay
 from auditor.config.values import (
     ConfigText,
     choice,
@@ -25,6 +25,13 @@ from auditor.config.values import (
     waivers_from,
 )
 from auditor.errors import ConfigError
+from auditor.model.vocabulary import (
+    POWER_PRESETS,
+    SEVERITY_NAMES,
+    TOUCH_SIDES,
+    PowerPreset,
+    TouchSide,
+)
 from auditor.rules.finding import Severity
 from auditor.rules.profiles import check_level, known_thresholds
 from auditor.rules.tomlfile import read_toml
@@ -149,7 +156,7 @@ def _thresholds(value: Any, where: ConfigText) -> dict[str, Any]:
 
 
 def _fail_on(value: Any, where: ConfigText) -> Severity:
-    return Severity.parse(choice(value, ("error", "warning", "info"), "fail_on", where))
+    return Severity.parse(choice(value, SEVERITY_NAMES, "fail_on", where))
 
 
 _READERS: dict[str, Callable[[Any, ConfigText], Any]] = {
@@ -157,7 +164,7 @@ _READERS: dict[str, Callable[[Any, ConfigText], Any]] = {
     "overlay": _overlay,
     "air_gap_mm": lambda v, w: number(v, "air_gap_mm", w, minimum=0.0),
     "touch_side": lambda v, w: cast(TouchSide, choice(v, TOUCH_SIDES, "touch_side", w)),
-    "power": lambda v, w: cast(Power, choice(v, POWER_CHOICES, "power", w)),
+    "power": lambda v, w: cast(PowerPreset, choice(v, POWER_PRESETS, "power", w)),
     "sensors": _sensors,
     "controller": lambda v, w: strings(v, "controller", w, single=True)[0],
     "noisy_nets": lambda v, w: strings(v, "noisy_nets", w),

@@ -6,9 +6,10 @@ import math
 from dataclasses import replace
 from typing import cast
 
-from auditor.config.model import POWER_CHOICES, TOUCH_SIDES, Config, Overlay, Power, TouchSide
+from auditor.config.model import Config, Overlay
 from auditor.config.values import overlay_of_material
 from auditor.errors import UsageError
+from auditor.model.vocabulary import POWER_PRESETS, TOUCH_SIDES, PowerPreset, TouchSide
 from auditor.rules.finding import Severity
 
 
@@ -60,7 +61,7 @@ def with_overrides(config: Config, *, profile: str | None = None, overlay: str |
     if overlay:
         changes["overlay"] = parse_overlay_spec(overlay)
     if power:
-        changes["power"] = cast(Power, _choice(power, POWER_CHOICES, "--power"))
+        changes["power"] = cast(PowerPreset, _choice(power, POWER_PRESETS, "--power"))
     if touch_side:
         changes["touch_side"] = cast(TouchSide, _choice(touch_side, TOUCH_SIDES, "--touch-side"))
     if fail_on:
