@@ -13,8 +13,9 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 from auditor.errors import UsageError
-from auditor.field.axisym import AxisymModel, DielectricSlab, Sheet, solve_axisym, solve_axisym_pair
+from auditor.field.axisym import AxisymModel, Sheet, solve_axisym, solve_axisym_pair
 from auditor.field.circuit import BODY_TO_EARTH_PF, DEVICE_TO_EARTH, touch_network
+from auditor.field.dielectric import DielectricSlab
 from auditor.field.matrix import CapacitanceMatrix
 from auditor.field.traces import TraceRunSpec
 from auditor.model.vocabulary import PadSide, PowerPreset
