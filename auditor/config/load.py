@@ -16,6 +16,7 @@ from pathlib import Path
 from typing import Any, cast
 
 from auditor.config.model import Config, Overlay
+from auditor.config.toml_positions import read_toml
 from auditor.config.values import (
     ConfigText,
     choice,
@@ -32,9 +33,11 @@ from auditor.model.vocabulary import (
     PowerPreset,
     TouchSide,
 )
+
+# The module, not its names: profiles read TOML through this package, and whichever
+# of the two is imported first finds the other half-initialised.
+from auditor.rules import profiles
 from auditor.rules.finding import Severity
-from auditor.rules.profiles import check_level, known_thresholds
-from auditor.rules.tomlfile import read_toml
 from auditor.sensors.selection import selection_from_mapping
 
 CONFIG_NAMES = ("padaudit.toml", "pyproject.toml")
@@ -137,14 +140,14 @@ def _severity(value: Any, where: ConfigText) -> dict[str, str]:
     if not isinstance(value, dict):
         raise where.error("severity must be a table of rule id = level", "severity")
     sub = where.sub("severity")
-    return {rule_id: check_level(rule_id, level, where.path, sub.line_of(rule_id))
+    return {rule_id: profiles.check_level(rule_id, level, where.path, sub.line_of(rule_id))
             for rule_id, level in sorted(value.items())}
 
 
 def _thresholds(value: Any, where: ConfigText) -> dict[str, Any]:
     if not isinstance(value, dict):
         raise where.error("thresholds must be a table of name = number", "thresholds")
-    known = known_thresholds()
+    known = profiles.known_thresholds()
     sub = where.sub("thresholds")
     for key, item in value.items():
         if key not in known:

@@ -14,17 +14,16 @@ them in either place.
 from __future__ import annotations
 
 import math
-import re
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+from auditor.config.toml_positions import key_comments, key_line, read_toml
 from auditor.errors import ConfigError
 from auditor.rules.context import ThresholdValue
 from auditor.rules.finding import Severity
 from auditor.rules.registry import all_rules
-from auditor.rules.tomlfile import key_line, read_toml
 
 #: Every threshold comment in a built-in profile contains one of these.
 ORIGIN_MARKERS = ("published:", "common practice, no source", "from memory")
@@ -133,7 +132,7 @@ def _load(path: Path, seen: tuple[Path, ...]) -> Profile:
     _check_keys(table, text, path)
     own_thresholds = _thresholds(table.get("thresholds", {}), text, path)
     own_levels = _levels(table.get("rules", {}), text, path)
-    origins = threshold_notes(text)
+    origins = key_comments(text, "thresholds")
     name = path.stem
     parent_name = table.get("extends")
     if parent_name is None:
@@ -199,34 +198,6 @@ def check_level(rule_id: str, level: Any, path: str | Path, line: int | None) ->
 def severity_of_level(level: str) -> Severity | None:
     """``None`` for ``off``, else the severity."""
     return None if level == "off" else Severity.parse(level)
-
-
-_KEY = re.compile(r"^\s*([A-Za-z0-9_-]+)\s*=")
-
-
-def threshold_notes(text: str) -> dict[str, str]:
-    """For each key in ``[thresholds]``, the comment lines directly above it
-    (and a trailing comment on its own line), joined."""
-    notes: dict[str, str] = {}
-    comments: list[str] = []
-    in_table = False
-    for raw in text.splitlines():
-        stripped = raw.strip()
-        if stripped.startswith("["):
-            in_table = stripped.strip("[] ") == "thresholds"
-            comments = []
-        elif stripped.startswith("# ---"):
-            comments = []  # a section heading, not part of the next key's note
-        elif stripped.startswith("#"):
-            comments.append(stripped.lstrip("#").strip())
-        elif in_table and _KEY.match(raw):
-            key = _KEY.match(raw).group(1)  # type: ignore[union-attr]
-            trailing = raw.split("#", 1)[1].strip() if "#" in raw else ""
-            notes[key] = " ".join(c for c in (*comments, trailing) if c)
-            comments = []
-        else:
-            comments = []
-    return notes
 
 
 def has_origin(note: str) -> bool:
