@@ -110,7 +110,6 @@ EARTH = "earth"
 #: 2008) system-level ESD human model, inside the 100-300 pF measured for a
 #: standing person (Jonassen 1998, from memory).
 BODY_TO_EARTH_PF = 150.0
-BODY_TO_EARTH_ORIGIN = "pub: IEC 61000-4-2 Ed. 2.0 (2008) human model, 150 pF"
 
 
 #: Device ground to earth by power preset: (pF, origin).

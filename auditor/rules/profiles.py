@@ -3,8 +3,9 @@
 A profile file has ``description``, optionally ``extends`` (a built-in name
 or a path relative to the file), a ``[thresholds]`` table and a ``[rules]``
 table mapping rule ids to ``error``/``warning``/``info``/``off``. Each
-threshold in a built-in profile carries a comment naming its origin (one of
-:data:`ORIGIN_MARKERS`) on the lines directly above it.
+threshold in a built-in profile carries a comment naming its origin
+("published: ...", "common practice, no source" or "from memory") on the
+lines directly above it.
 
 Built-in profiles live in the repository's top-level ``rules/`` folder and
 ship inside the wheel as ``auditor/_profiles``; :func:`profile_dirs` finds
@@ -26,7 +27,6 @@ from auditor.rules.finding import Severity
 from auditor.rules.registry import all_rules
 
 #: Every threshold comment in a built-in profile contains one of these.
-ORIGIN_MARKERS = ("published:", "common practice, no source", "from memory")
 
 #: Thresholds read by the measuring stage or the revision comparison rather
 #: than by a rule.
@@ -198,9 +198,3 @@ def check_level(rule_id: str, level: Any, path: str | Path, line: int | None) ->
 def severity_of_level(level: str) -> Severity | None:
     """``None`` for ``off``, else the severity."""
     return None if level == "off" else Severity.parse(level)
-
-
-def has_origin(note: str) -> bool:
-    """True when a threshold note names its origin."""
-    lowered = note.lower()
-    return any(marker in lowered for marker in ORIGIN_MARKERS)

@@ -141,20 +141,6 @@ def all_rules() -> tuple[RuleSpec, ...]:
     return tuple(_REGISTRY[k] for k in sorted(_REGISTRY))
 
 
-def get_rule(rule_id: str) -> RuleSpec:
-    """One rule by id.
-
-    Raises
-    ------
-    KeyError
-        With the valid ids listed.
-    """
-    rules = {spec.rule_id: spec for spec in all_rules()}
-    if rule_id not in rules:
-        raise KeyError(f"unknown rule {rule_id!r}; known rules: {', '.join(rules)}")
-    return rules[rule_id]
-
-
 @dataclass(frozen=True)
 class RuleRun:
     """Findings of every rule that ran, and the rules that crashed."""

@@ -6,12 +6,12 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
+from origins import has_origin
 
 from auditor.config.toml_positions import key_comments
 from auditor.errors import ConfigError
 from auditor.rules.profiles import (
     builtin_profile_names,
-    has_origin,
     known_thresholds,
     load_profile,
     profile_dirs,
