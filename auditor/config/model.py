@@ -25,7 +25,9 @@ class Overlay:
     material: str = "acrylic"
 
     def describe(self) -> str:
-        """E.g. ``2.0 mm acrylic (er 2.8)``."""
+        """E.g. ``2.0 mm acrylic (er 2.8)``, or ``none`` for no cover."""
+        if self.thickness_mm == 0.0:
+            return "none"
         name = f"{self.material} " if self.material else ""
         return f"{self.thickness_mm:g} mm {name}(er {self.epsilon_r:g})"
 

@@ -191,6 +191,8 @@ def test_bad_overlay_spec(spec: str) -> None:
 
 def test_overlay_none_is_no_cover() -> None:
     assert parse_overlay_spec(" None ") == Overlay(0.0, 1.0, "")
+    assert Config(overlay=Overlay(0.0, 1.0, ""), air_gap_mm=1.0).describe_overlay() == \
+        "none + 1 mm air"
 
 
 def test_bad_flag_choice_rejected() -> None:
