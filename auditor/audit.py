@@ -16,6 +16,7 @@ from typing import TYPE_CHECKING
 
 from auditor import __version__
 from auditor.config import Config, discover_config, with_overrides
+from auditor.config.profiles import Profile, load_profile
 from auditor.decide import Policy, decide, sensitivity_ranks, sensor_strength
 from auditor.decide.baseline import Baseline, apply_baseline, load_baseline
 from auditor.decide.cautions import cautions_for
@@ -25,7 +26,6 @@ from auditor.model.items import ReadWarning
 from auditor.model.results import PadMetrics
 from auditor.read import read_board
 from auditor.rules.context import RuleContext, RuleSettings, ThresholdValue
-from auditor.rules.profiles import Profile, load_profile
 from auditor.rules.registry import all_rules, run_rules
 from auditor.sensors import find_sensors, mark_sense_neighbours, measure_each
 from auditor.sensors.model import Sensor, name_order

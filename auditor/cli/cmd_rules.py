@@ -6,9 +6,9 @@ import argparse
 import sys
 
 from auditor.cli.wrap import write_lines
+from auditor.config.profiles import load_profile
 from auditor.errors import UsageError
-from auditor.rules.docs import rule_text
-from auditor.rules.profiles import load_profile
+from auditor.report.rules_md import rule_text
 from auditor.rules.registry import all_rules
 
 

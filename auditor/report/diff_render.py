@@ -10,7 +10,8 @@ from rich.text import Text
 
 from auditor.decide.diff import PadChange, ReportDiff
 from auditor.decide.records import DecidedFinding
-from auditor.report.as_json import dumps, rounded
+from auditor.report.as_json import dumps
+from auditor.report.rounding import significant
 from auditor.report.text_fit import (
     Cell,
     Column,
@@ -121,12 +122,12 @@ def render_diff_text(diff: ReportDiff, stream: TextIO, colour: bool,
 
 def _pad_doc(change: PadChange) -> dict[str, Any]:
     doc: dict[str, Any] = {"name": change.name, "status": change.status,
-                           "ratio_loss": rounded(change.ratio_loss)}
+                           "ratio_loss": significant(change.ratio_loss)}
     for field, _ in _FIELDS + (("cp_pad_pf", ""), ("cp_trace_pf", "")):
         doc[field] = {
-            "old": rounded(getattr(change.old, field)) if change.old else None,
-            "new": rounded(getattr(change.new, field)) if change.new else None,
-            "change_pct": rounded(change.change_pct(field)),
+            "old": significant(getattr(change.old, field)) if change.old else None,
+            "new": significant(getattr(change.new, field)) if change.new else None,
+            "change_pct": significant(change.change_pct(field)),
         }
     return doc
 
@@ -142,7 +143,7 @@ def diff_document(diff: ReportDiff) -> dict[str, Any]:
     """The comparison as JSON-ready data."""
     return {
         "diff_schema_version": DIFF_SCHEMA_VERSION, "old": diff.old_label, "new": diff.new_label,
-        "max_ratio_loss": rounded(diff.max_ratio_loss), "fail_on": diff.fail_on.label,
+        "max_ratio_loss": significant(diff.max_ratio_loss), "fail_on": diff.fail_on.label,
         "pads": [_pad_doc(p) for p in diff.pads],
         "losing": [p.name for p in diff.losing],
         "not_compared": [p.name for p in diff.pads if p.status == "unsolved"],

@@ -11,14 +11,13 @@ from __future__ import annotations
 import fnmatch
 from collections.abc import Mapping
 from dataclasses import dataclass, field
-from typing import Literal, Protocol
+from typing import Protocol
 
 from auditor.model.items import ReadWarning
+from auditor.model.vocabulary import PowerPreset, TouchSide
 from auditor.sensors.model import Sensor
 
 ThresholdValue = float | int | bool
-TouchSide = Literal["front", "back"]
-Power = Literal["battery", "usb", "mains"]
 
 
 class PadMetricsLike(Protocol):
@@ -46,7 +45,7 @@ class RuleSettings:
     overlay_thickness_mm: float = 2.0
     overlay_electrical_mm: float = 2.0 / 3.0
     touch_side: TouchSide = "front"
-    power: Power = "battery"
+    power: PowerPreset = "battery"
     noisy_nets: tuple[str, ...] = ()
     controller_ref: str = ""
     sense_nets: tuple[str, ...] = ()  # every electrode's nets, both sides of series parts

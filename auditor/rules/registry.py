@@ -19,14 +19,12 @@ import re
 from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass, field
 
+from auditor.model.vocabulary import SENSOR_KINDS, SensorKind
 from auditor.rules.context import Limits, RuleContext
 from auditor.rules.finding import Finding, Severity
-from auditor.sensors.model import Sensor, SensorKind
+from auditor.sensors.model import Sensor
 
 _SLUG = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
-
-ALL_KINDS: tuple[SensorKind, ...] = (
-    "button", "slider", "wheel", "proximity", "mutual-tx", "mutual-rx")
 
 
 @dataclass(frozen=True)
@@ -124,7 +122,7 @@ def _reflowed(doc: str) -> str:
 
 def sensor_rule(rule_id: str, *, title: str, fix: str, severity: Severity,
                 thresholds: tuple[str, ...] = (),
-                kinds: tuple[SensorKind, ...] = ALL_KINDS,
+                kinds: tuple[SensorKind, ...] = SENSOR_KINDS,
                 ) -> Callable[[SensorRuleFn], SensorRuleFn]:
     """Register a rule called once per sensor of one of ``kinds``."""
     return _decorate(rule_id, title, fix, severity, thresholds, kinds, "sensor")
@@ -133,7 +131,7 @@ def sensor_rule(rule_id: str, *, title: str, fix: str, severity: Severity,
 def board_rule(rule_id: str, *, title: str, fix: str, severity: Severity,
                thresholds: tuple[str, ...] = ()) -> Callable[[BoardRuleFn], BoardRuleFn]:
     """Register a rule called once per board."""
-    return _decorate(rule_id, title, fix, severity, thresholds, ALL_KINDS, "board")
+    return _decorate(rule_id, title, fix, severity, thresholds, SENSOR_KINDS, "board")
 
 
 def all_rules() -> tuple[RuleSpec, ...]:
@@ -141,20 +139,6 @@ def all_rules() -> tuple[RuleSpec, ...]:
     import auditor.rules.builtin  # noqa: F401 - registers the rules
 
     return tuple(_REGISTRY[k] for k in sorted(_REGISTRY))
-
-
-def get_rule(rule_id: str) -> RuleSpec:
-    """One rule by id.
-
-    Raises
-    ------
-    KeyError
-        With the valid ids listed.
-    """
-    rules = {spec.rule_id: spec for spec in all_rules()}
-    if rule_id not in rules:
-        raise KeyError(f"unknown rule {rule_id!r}; known rules: {', '.join(rules)}")
-    return rules[rule_id]
 
 
 @dataclass(frozen=True)

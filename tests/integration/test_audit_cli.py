@@ -213,7 +213,7 @@ def test_crashing_rule_named_and_others_still_reported(
 
     from auditor.rules import registry
 
-    spec = registry.get_rule("electrode-paste")
+    (spec,) = [s for s in registry.all_rules() if s.rule_id == "electrode-paste"]
 
     def broken(sensor: object, call: object) -> None:
         raise ZeroDivisionError("planted")

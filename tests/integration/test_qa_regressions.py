@@ -117,7 +117,7 @@ def test_default_stackup_names_its_original_source(
     (["--pad-diameter", "1e9"], "--pad-diameter: "),
     (["--pad-diameter", "10", "--gap", "1e9"], "--gap: "),
     (["--pad-diameter", "10", "--finger", "1e9"], "--finger: "),
-    (["--pad-diameter", "10", "--overlay", "1e-9:2"], "--overlay: "),
+    (["--pad-diameter", "10", "--overlay", "1e-9:2"], "--overlay '1e-9:2': "),
     (["--pad-diameter", "10", "--overlay", "2:abc"], "--overlay '2:abc': unknown material"),
 ])
 def test_absurd_estimate_input_is_a_usage_error(args: list[str], says: str,

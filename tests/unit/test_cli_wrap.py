@@ -8,8 +8,8 @@ import io
 import pytest
 
 from auditor.cli.wrap import hanging_indent, wrap_line, write_lines
-from auditor.rules.docs import rule_text
-from auditor.rules.profiles import load_profile
+from auditor.config.profiles import load_profile
+from auditor.report.rules_md import rule_text
 from auditor.rules.registry import all_rules
 
 

@@ -12,7 +12,8 @@ import pytest
 import sample_report as sample
 
 from auditor.model.results import PadMetrics
-from auditor.report.as_json import SCHEMA_VERSION, load_schema, render_json, rounded, to_document
+from auditor.report.as_json import SCHEMA_VERSION, load_schema, render_json, to_document
+from auditor.report.rounding import significant
 
 
 def _text(report: object) -> str:
@@ -85,7 +86,7 @@ def test_metrics_are_copied_not_recomputed() -> None:
     (float("inf"), None), (None, None), (1.23456789e-5, 1.23457e-5),
 ])
 def test_rounding_to_six_significant_digits(value: float | None, expected: float | None) -> None:
-    assert rounded(value) == expected
+    assert significant(value) == expected
 
 
 def test_nan_metrics_become_null_not_invalid_json() -> None:

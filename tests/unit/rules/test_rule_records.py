@@ -13,12 +13,12 @@ from dataclasses import dataclass, replace
 
 import pytest
 from precise_records import precise_cases
-from rule_records import context, path, sensor, surroundings
+from rule_records import context, get_rule, path, sensor, surroundings
 
 from auditor.model.items import ReadWarning
 from auditor.model.results import PadMetrics
 from auditor.rules.context import RuleContext
-from auditor.rules.registry import all_rules, get_rule, run_rules
+from auditor.rules.registry import all_rules, run_rules
 from auditor.sensors.model import LayerShadow, Neighbour, TraceRun
 
 
