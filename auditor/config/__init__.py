@@ -16,10 +16,6 @@ from auditor.config.load import (
 from auditor.config.model import Config, Overlay, Waiver
 from auditor.config.overrides import parse_overlay_spec, with_overrides
 
-# Kept under these names for the audit command until it takes the shared option builders.
-from auditor.model.vocabulary import POWER_PRESETS as POWER_CHOICES
-from auditor.model.vocabulary import TOUCH_SIDES
-
-__all__ = ["POWER_CHOICES", "TOUCH_SIDES", "VALID_KEYS", "Config", "Overlay", "Waiver",
+__all__ = ["VALID_KEYS", "Config", "Overlay", "Waiver",
            "config_from_mapping", "discover_config", "find_config", "load_config",
            "parse_overlay_spec", "with_overrides"]
