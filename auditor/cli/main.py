@@ -33,7 +33,7 @@ EXIT_INTERNAL = 3
 
 #: Sub-commands in the order ``--help`` lists them.
 COMMANDS: tuple[str, ...] = (
-    "audit", "demo", "inspect", "sensors", "estimate", "diff", "hook", "rules",
+    "audit", "demo", "inspect", "sensors", "estimate", "diff", "hook", "rules", "kicad-rules",
 )
 
 
@@ -63,10 +63,11 @@ def _load_commands(only: str | None = None) -> dict[str, ModuleType]:
     second of every run), else all, for ``--help`` and for usage errors."""
     modules: dict[str, ModuleType] = {}
     for name in (only,) if only else COMMANDS:
+        module = f"auditor.cli.cmd_{name.replace('-', '_')}"
         try:
-            modules[name] = importlib.import_module(f"auditor.cli.cmd_{name}")
+            modules[name] = importlib.import_module(module)
         except ModuleNotFoundError as exc:
-            if exc.name != f"auditor.cli.cmd_{name}":
+            if exc.name != module:
                 raise
     return modules
 
