@@ -109,7 +109,7 @@ def _header(inputs: ExportInputs, noisy: tuple[str, ...]) -> list[str]:
              "KiCad applies the last matching rule: keep these after your own rules.",
              "Conditions use KiCad 6 functions (insideCourtyard, insideArea); KiCad 7 and "
              "later read them too."]
-    lines += [f"Incomplete read of the board, rules may miss copper: {n}"
+    lines += [f"Reader warning (these rules cover only what padaudit could read): {n}"
               for n in inputs.read_notes]
     if noisy:
         lines.append("Noisy nets on this board: " + ", ".join(noisy) + ".")

@@ -32,6 +32,10 @@ def test_stdout(board: Path, capsys: pytest.CaptureFixture[str]) -> None:
     out = capsys.readouterr().out
     assert out.startswith("(version 1)\n")
     assert len(read_dru(out)) == 4
+    # Same board and options, same bytes (no time stamp, no absolute path).
+    assert main(["kicad-rules", str(board)]) == 0
+    assert capsys.readouterr().out == out
+    assert str(board.parent) not in out
 
 
 def test_writes_a_file_and_never_replaces_it_without_force(

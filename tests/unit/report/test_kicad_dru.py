@@ -210,7 +210,8 @@ def test_missing_threshold_is_said_not_hidden() -> None:
 
 def test_read_warnings_head_the_file() -> None:
     export = export_of(DRU / "clean.kicad_pcb", read_notes=("unknown-token: foo (line 3)",))
-    assert "# Incomplete read of the board, rules may miss copper: unknown-token" in export.text()
+    assert ("# Reader warning (these rules cover only what padaudit could read): "
+            "unknown-token: foo (line 3)") in export.text()
 
 
 # -- electrodes that are zones ----------------------------------------------------------------
