@@ -44,6 +44,7 @@ SUMMARIES: dict[str, str] = {
     "diff": "compare two boards or revisions pad by pad",
     "hook": "git pre-commit hook: install or run",
     "rules": "list the layout rules, or explain one",
+    "kicad-rules": "write the touch limits as KiCad custom design rules",
 }
 COMMANDS: tuple[str, ...] = tuple(SUMMARIES)
 
@@ -75,10 +76,11 @@ def _load_commands(only: str | None = None) -> dict[str, ModuleType]:
     parser; ``main`` itself never loads them all)."""
     modules: dict[str, ModuleType] = {}
     for name in (only,) if only else COMMANDS:
+        module = f"auditor.cli.cmd_{name.replace('-', '_')}"
         try:
-            modules[name] = importlib.import_module(f"auditor.cli.cmd_{name}")
+            modules[name] = importlib.import_module(module)
         except ModuleNotFoundError as exc:
-            if exc.name != f"auditor.cli.cmd_{name}":
+            if exc.name != module:
                 raise
     return modules
 
