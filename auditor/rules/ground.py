@@ -7,6 +7,7 @@ from collections.abc import Iterator
 
 from auditor.rules.context import EPS_MM
 from auditor.rules.finding import Finding, Severity
+from auditor.rules.groups import in_one_group
 from auditor.rules.registry import RuleCall, sensor_rule
 from auditor.sensors.model import Sensor
 
@@ -24,13 +25,15 @@ def ground_gap_tight(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     otherwise reach the finger: the baseline Cp rises and the touch signal ΔC
     falls, so the relative change shrinks on both counts. Slider and wheel
     segments sit close to each other by design, so they have their own,
-    smaller limit."""
+    smaller limit, and none at all against a segment of their own group."""
     surround = sensor.surroundings
     if surround is None:
         return
     segment = sensor.kind in ("slider", "wheel")
     checks = [(surround.min_gap_mm, "surrounding copper",
                call.limits["segment_gap_min_mm" if segment else "ground_gap_min_mm"])]
+    if _nearest_is_sibling(sensor, call):  # interleaved segments: close by design
+        checks = []
     if segment:  # the ground itself, measured apart from the neighbouring segments
         checks.append((surround.min_ground_gap_mm, f"ground {surround.ground_net}",
                        call.limits["ground_gap_min_mm"]))
@@ -40,6 +43,17 @@ def ground_gap_tight(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
                 f"gap to {what} is {gap_mm:.2f} mm, less than {limit_mm:.2f} mm", sensor,
                 (("gap_mm", gap_mm), ("min_mm", limit_mm)))
             return
+
+
+def _nearest_is_sibling(sensor: Sensor, call: RuleCall) -> bool:
+    """True when the closest copper around the segment is a segment of its
+    own slider or wheel (so the measured gap is the interleaving)."""
+    surround = sensor.surroundings
+    if surround is None or surround.min_gap_mm is None or surround.nearest_sensor_mm is None:
+        return False
+    other = next((s for s in call.board.sensors if s.name == surround.nearest_sensor), None)
+    return other is not None and in_one_group(sensor, other) \
+        and surround.nearest_sensor_mm <= surround.min_gap_mm + EPS_MM
 
 
 @sensor_rule(

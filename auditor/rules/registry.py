@@ -25,6 +25,8 @@ from auditor.sensors.model import Sensor, SensorKind
 
 _SLUG = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
 
+#: Sensor rules run on these kinds only (the finger-touch kinds of
+#: :data:`auditor.rules.context.TOUCH_KINDS`; key switches get none).
 ALL_KINDS: tuple[SensorKind, ...] = (
     "button", "slider", "wheel", "proximity", "mutual-tx", "mutual-rx")
 

@@ -5,8 +5,9 @@ from __future__ import annotations
 from collections.abc import Iterator
 from typing import Any
 
-from auditor.rules.context import EPS_MM
+from auditor.rules.context import EPS_MM, TOUCH_KINDS
 from auditor.rules.finding import Finding, Severity
+from auditor.rules.groups import in_one_group
 from auditor.rules.registry import RuleCall, sensor_rule
 from auditor.sensors.model import Neighbour, SensePath, Sensor
 
@@ -112,8 +113,24 @@ def _at_series_part(path: SensePath) -> dict[str, Any]:
     return {"x_mm": path.series_x_mm, "y_mm": path.series_y_mm, "layer": path.series_layer}
 
 
+def _is_sense(neighbour: Neighbour, call: RuleCall) -> bool:
+    return neighbour.sense or neighbour.net in call.board.settings.sense_nets
+
+
 def _noisy(neighbour: Neighbour, call: RuleCall) -> bool:
+    """Noisy by name or driver, unless it is a sense net (whatever its name:
+    a sense net called ``*_LED`` is still a sense net)."""
+    if _is_sense(neighbour, call):
+        return False
     return neighbour.noisy or call.board.settings.is_noisy_net(neighbour.net)
+
+
+def _at_crossing(neighbour: Neighbour) -> dict[str, Any]:
+    """Place a finding where the path first crosses the other net."""
+    if neighbour.crossing_x_mm is None or neighbour.crossing_y_mm is None:
+        return {}
+    return {"x_mm": neighbour.crossing_x_mm, "y_mm": neighbour.crossing_y_mm,
+            "layer": neighbour.crossing_layer}
 
 
 @sensor_rule(
@@ -138,8 +155,9 @@ def trace_parallel_run(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     width_mm = max((r.width_mm for r in path.runs), default=0.0)
     sense_gap_mm = call.limits["sense_spacing_widths"] * width_mm
     for neighbour in sorted(path.neighbours, key=lambda n: n.net):
-        is_sense = neighbour.sense or neighbour.net in call.board.settings.sense_nets
-        if is_sense and neighbour.min_distance_mm >= sense_gap_mm - EPS_MM:
+        if neighbour.min_distance_mm is None:  # crossings only: the crossings rule
+            continue
+        if _is_sense(neighbour, call) and neighbour.min_distance_mm >= sense_gap_mm - EPS_MM:
             continue
         if neighbour.parallel_mm > limit_mm + EPS_MM:
             yield call.finding(
@@ -159,13 +177,18 @@ def trace_parallel_run(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
 )
 def trace_near_noisy_net(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     """Fast edges on a nearby net inject charge through even a small mutual
-    capacitance; the controller integrates it as signal."""
+    capacitance; the controller integrates it as signal. Distances are taken
+    on one layer (a net on another layer that the trace crosses is the
+    crossings rule's business) and away from the controller's own pins,
+    where the nets on neighbouring pins cannot be avoided."""
     path = sensor.path
     if path is None:
         return
     limit_mm = call.limits["noisy_net_min_mm"]
     for neighbour in sorted(path.neighbours, key=lambda n: n.net):
-        if _noisy(neighbour, call) and neighbour.min_distance_mm < limit_mm - EPS_MM:
+        if neighbour.min_distance_mm is None or not _noisy(neighbour, call):
+            continue
+        if neighbour.min_distance_mm < limit_mm - EPS_MM:
             yield call.finding(
                 f"noisy net {neighbour.net} comes within {neighbour.min_distance_mm:.2f} mm, "
                 f"less than {limit_mm:.2f} mm", sensor,
@@ -190,10 +213,12 @@ def trace_crossings(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     total = sum(n.crossings for n in crossed)
     limit = call.limits["trace_max_crossings"]
     if total > limit:
+        most = max(crossed, key=lambda n: (n.crossings, n.net))
         yield call.finding(
-            f"sense trace crosses other nets {total} times, more than {limit:.0f}", sensor,
+            f"sense trace crosses other nets {total} times, more than {limit:.0f} (most "
+            f"often {most.net}, {most.crossings} times)", sensor,
             (("crossings", float(total)), ("max", limit)),
-            nets=sensor.nets + tuple(n.net for n in crossed))
+            nets=sensor.nets + tuple(n.net for n in crossed), **_at_crossing(most))
 
 
 @sensor_rule(
@@ -208,7 +233,11 @@ def trace_under_electrode(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     path = sensor.path
     if path is None:
         return
+    by_name = {s.name: s for s in call.board.sensors}
     for other in sorted(set(path.under_electrodes)):
+        if other in by_name and (in_one_group(sensor, by_name[other])
+                                 or by_name[other].kind not in TOUCH_KINDS):
+            continue  # a segment's trace beside its own slider's segments: by design
         yield call.finding(f"sense trace passes under or beside electrode {other}", sensor,
                            nets=sensor.nets + _nets_of(other, call))
 

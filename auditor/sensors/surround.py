@@ -19,6 +19,7 @@ from collections.abc import Callable, Sequence
 
 import numpy as np
 import shapely
+import shapely.errors
 from shapely import STRtree
 from shapely.geometry.base import BaseGeometry
 from shapely.ops import unary_union
@@ -118,14 +119,29 @@ def ground_fill_ratio(board: Board, sensor: Sensor, others: Sequence[Sensor], gr
     if ring.area <= 1e-9:
         return 0.0
     copper = copper_near(board, sensor.layer, ring, lambda net: net == ground)
-    return min(1.0, float(copper.intersection(ring).area / ring.area))
+    return min(1.0, float(robust_intersection(copper, ring).area / ring.area))
+
+
+def robust_intersection(a: BaseGeometry, b: BaseGeometry) -> BaseGeometry:
+    """``a ∩ b``; odd real copper (self-touching hatch, slivers) can make
+    GEOS give up, and then both are repaired first (``make_valid``, and a
+    zero buffer as the last resort)."""
+    try:
+        return a.intersection(b)
+    except shapely.errors.GEOSException:
+        pass
+    try:
+        return shapely.make_valid(a).intersection(shapely.make_valid(b))
+    except shapely.errors.GEOSException:
+        return a.buffer(0).intersection(b.buffer(0))
 
 
 def nearest_sensor(sensor: Sensor, others: Sequence[Sensor]) -> tuple[str, float | None]:
-    """The nearest other electrode (any layer) and the edge-to-edge distance."""
+    """The nearest other electrode on the same layer and the edge-to-edge
+    distance (an electrode on another layer is not at a distance of zero)."""
     best: tuple[float, str] | None = None
     for other in others:
-        if other.name == sensor.name:
+        if other.name == sensor.name or other.layer != sensor.layer:
             continue
         dist = float(sensor.geometry.distance(other.geometry))
         if best is None or (dist, other.name) < best:
