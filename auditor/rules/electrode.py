@@ -169,12 +169,13 @@ def electrodes_too_close(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
 def electrodes_share_net(call: RuleCall) -> Iterator[Finding]:
     """Two electrodes on one net are one sensor to the controller: a touch on
     either reads the same and the pair has the baseline of both. It is usually
-    a copy-paste or a net-label mistake. Mutual-capacitance transmit lines are
-    shared on purpose and are exempt, as are pieces of one slider or wheel
-    (split end segments) and one pad drawn on both faces."""
+    a copy-paste or a net-label mistake. Mutual-capacitance transmit and
+    receive lines are shared on purpose (each key of a matrix is one transmit
+    column crossing one receive row) and are exempt, as are pieces of one
+    slider or wheel (split end segments) and one pad drawn on both faces."""
     by_net: dict[str, list[Sensor]] = {}
     for sensor in call.board.touch_sensors:
-        if sensor.kind == "mutual-tx":
+        if sensor.kind in ("mutual-tx", "mutual-rx"):
             continue
         for net in sensor.nets:
             if net:
