@@ -68,9 +68,11 @@ def electrode_too_large(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
 def electrode_far_side(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     """An electrode on the far layer senses through the board's own dielectric
     as well as the cover, and any copper on the near layer screens it from the
-    finger."""
+    finger. A pad drawn on both faces is judged by its near-side copy."""
     near = call.board.touch_layer
-    if sensor.layer != near:
+    if sensor.layer != near and not any(
+            o.layer == near and set(o.nets) == set(sensor.nets) and _overlap(o, sensor)
+            for o in call.board.sensors):
         yield call.finding(
             f"electrode is on {sensor.layer}; the touch surface is on the "
             f"{call.board.settings.touch_side} ({near})", sensor)

@@ -157,7 +157,7 @@ def _crossings(board: Board, tracks: Sequence[Track], skip: Collection[str]
                                      lambda it: it.source == "track" and it.net not in skip):
                 if not item.geometry.intersects(line):
                     continue
-                at = line.intersection(item.geometry).representative_point()
+                at = line.intersection(item.geometry).centroid
                 count, x, y, where = found.get(item.net, (0, at.x, at.y, layer))
                 found[item.net] = (count + 1, x, y, where)
     return found
