@@ -10,6 +10,7 @@ from auditor.rules.finding import Finding, Severity
 from auditor.rules.groups import in_one_group
 from auditor.rules.registry import RuleCall, sensor_rule
 from auditor.sensors.model import Sensor
+from auditor.sensors.noisy import is_shield_net
 
 
 @sensor_rule(
@@ -98,15 +99,17 @@ def copper_under_electrode(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     """Copper on another layer under the pad forms a parallel-plate capacitor
     with it through the board: with a 1.6 mm FR-4 board and a solid plane the
     baseline can exceed the controller's range and the relative change under a
-    finger collapses. A hatch lowers that in proportion to its fill."""
+    finger collapses. A hatch lowers that in proportion to its fill. A driven
+    shield under the pad is at the pad's own potential and is exempt."""
     surround = sensor.surroundings
     if surround is None:
         return
     min_fraction = call.limits["under_shadow_min_fraction"]
     max_fill = call.limits["under_fill_max_ratio"]
     for shadow in sorted(surround.shadows, key=lambda s: s.layer):
-        if shadow.fill == "none" or shadow.shadowed_fraction < min_fraction:
-            continue
+        if shadow.fill == "none" or shadow.shadowed_fraction < min_fraction \
+                or (shadow.nets and all(is_shield_net(n) for n in shadow.nets)):
+            continue  # a driven shield under the pad is there to cut Cp, not add it
         if shadow.fill_ratio > max_fill + 1e-9:
             yield call.finding(
                 f"{shadow.fill} copper on {shadow.layer} covers "

@@ -8,7 +8,7 @@ A net is noisy when
   word (``MCLK``, ``PWM1``, ``CLKOUT``), or a crystal, oscillator, buzzer or
   speaker part.
 
-Never noisy, whatever the name: power rails (``+5V``, ``VCC``, ``+VLED``: a
+Never noisy, whatever the name: driven shields and guards, power rails (``+5V``, ``VCC``, ``+VLED``: a
 rail is held by its decoupling and carries no edges of its own), nets KiCad
 named ``unconnected-(...)`` (one pad, nothing drives them) and ground. Sense
 nets are never noisy either; the sensor stage marks them afterwards, since
@@ -35,6 +35,23 @@ _SOURCE_WORDS = re.compile(r"crystal|oscillator|xtal|resonator|buzzer|speaker",
 _RAIL = re.compile(r"^([+-]|(A|D|P)?V(CC|DD|BUS|BAT|IN|SYS|IO|LED|REF|MOT)|\d+V\d*$|V\d+V?\d*$)")
 
 
+#: Words of a driven shield or guard net (our own judgement, no source).
+SHIELD_WORDS = ("shield", "shld", "guard", "drvshield")
+
+
+def is_shield_net(net: str) -> bool:
+    """A driven shield or guard (``ACShield``, ``/p/GUARD``): it carries the
+    sense waveform itself, so copper of it beside or under an electrode is
+    there by design and adds no baseline (common practice, no source).
+
+    >>> [is_shield_net(n) for n in ("ACShield", "/p/GUARD_1", "SHIELD_GND", "TOUCH1")]
+    [True, True, False, False]
+    """
+    return not is_ground_name(net) and not any(
+        tok == "gnd" for tok in tokens(leaf(net))) and any(
+        tok.startswith(word) for tok in tokens(leaf(net)) for word in SHIELD_WORDS)
+
+
 def is_power_rail(net: str) -> bool:
     """Supply-rail names: ``+3V3``, ``VCC``, ``/p/+VLED``, ``VBUS``, ``5V``.
 
@@ -50,7 +67,7 @@ def _has_noisy_word(name: str) -> bool:
 
 def noisy_by_name(net: str, selection: SensorSelection) -> bool:
     """Noisy by its name alone (see module docs)."""
-    if not net or is_power_rail(net) or is_ground_name(net) \
+    if not net or is_power_rail(net) or is_ground_name(net) or is_shield_net(net) \
             or leaf(net).startswith("unconnected-("):
         return False
     return matches(net, selection.noisy_nets) or _has_noisy_word(leaf(net))

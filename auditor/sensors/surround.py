@@ -1,6 +1,6 @@
 """Measure what surrounds each electrode.
 
-* gaps to same-layer copper of other nets: the minimum (edge to edge) and the
+* gaps to same-layer copper of other nets (a driven shield's excepted): the minimum (edge to edge) and the
   typical one, the median over points spaced :data:`PERIMETER_STEP_MM` along
   the electrode's outline of the distance to the nearest such copper (points
   with none within ``gap_search_mm`` are left out);
@@ -27,6 +27,7 @@ from shapely.ops import unary_union
 from auditor.model.board import Board
 from auditor.sensors.floating import floating_copper_near
 from auditor.sensors.model import Sensor, Surroundings
+from auditor.sensors.noisy import is_shield_net
 from auditor.sensors.parts import noisy_parts_near
 from auditor.sensors.selection import SensorSelection
 from auditor.sensors.shadow import shadows_of
@@ -41,7 +42,8 @@ def surroundings_of(board: Board, sensor: Sensor, others: Sequence[Sensor],
                     selection: SensorSelection, ground: str,
                     ground_area_mm2: float) -> Surroundings:
     """Everything :class:`Surroundings` holds for one electrode."""
-    own = set(sensor.nets)
+    # a driven shield carries the sense waveform: no field across that gap
+    own = set(sensor.nets) | {net for net in board.nets if is_shield_net(net)}
     search = selection.gap_search_mm
     around = pieces_in(board, sensor.layer, sensor.geometry.buffer(search),
                        lambda it: it.net not in own)
