@@ -9,6 +9,7 @@ from auditor.rules.context import EPS_MM
 from auditor.rules.finding import Finding, Severity
 from auditor.rules.groups import in_one_group
 from auditor.rules.registry import RuleCall, sensor_rule
+from auditor.rules.sense_path import off_board
 from auditor.sensors.model import Sensor
 from auditor.sensors.noisy import is_shield_net
 
@@ -183,9 +184,12 @@ def ground_ratio_small(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     coupling to the user and to earth. A battery device whose ground copper is
     not much larger than its electrodes couples weakly, so part of the signal
     is lost (physics.md §3, floating reduction). Mains products are tied to
-    earth through the supply and are exempt."""
+    earth through the supply and are exempt, and so are electrodes wired to a
+    connector: the device ground is then mostly on the controller's board."""
     surround = sensor.surroundings
     if surround is None or not surround.ground_net or sensor.area_mm2 <= 0:
+        return
+    if sensor.path is not None and off_board(sensor.path):
         return
     if call.board.settings.power == "mains":
         return
