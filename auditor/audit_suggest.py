@@ -18,10 +18,19 @@ from auditor.config import Config
 from auditor.decide.records import DecidedFinding, Report
 from auditor.model.board import Board
 from auditor.model.results import PadMetrics
+from auditor.model.suggestions import Predicted
 from auditor.sensors.model import Sensor
 from auditor.solve.suggest import SUGGESTING_RULES, electrode_for, suggestions_for
 from auditor.solve.suggest_levers import Electrode
 from auditor.solve.suggest_search import Predictor
+
+
+def lumped_pf(solved: PadMetrics, field: Predicted) -> float:
+    """What the electrode's Cp total holds besides its field model (the
+    controller pin, parts on the sense net): the difference between its
+    quick metrics and the solve of the same setup, 0 when there is none."""
+    extra = solved.cp_total_pf - field.cp_total_pf
+    return extra if extra > 1e-9 else 0.0
 
 
 def with_suggestions(report: Report, board: Board, sensors: tuple[Sensor, ...],
@@ -34,8 +43,11 @@ def with_suggestions(report: Report, board: Board, sensors: tuple[Sensor, ...],
 
     def electrode(name: str, solved: PadMetrics) -> Electrode | None:
         if name not in electrodes:
-            electrodes[name] = electrode_for(by_name[name], board, config, thresholds,
-                                             disk_model=solved.method == "quick")
+            found = electrode_for(by_name[name], board, config, thresholds,
+                                  disk_model=solved.method == "quick")
+            if found is not None and found.disk_model:
+                found = replace(found, lumped_pf=lumped_pf(solved, predict(found.setup)))
+            electrodes[name] = found
         return electrodes[name]
 
     def suggested(decided: DecidedFinding) -> DecidedFinding:

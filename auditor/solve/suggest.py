@@ -37,7 +37,7 @@ from auditor.solve.suggest_levers import (
     thickness_lever,
     with_gap,
 )
-from auditor.solve.suggest_search import Predictor, smallest_clearing
+from auditor.solve.suggest_search import Predict, Predictor, smallest_clearing
 
 #: Share by which a predicted result clears a limit on Cp, ΔC or ΔC/Cp
 #: (value chosen by padaudit, see the module docstring).
@@ -71,8 +71,9 @@ def electrode_for(sensor: Sensor, board: Board, config: Config,
 
 
 def suggestions_for(rule_id: str, measured: Mapping[str, float], layer: str,
-                    electrode: Electrode, predict: Predictor) -> tuple[Suggestion, ...]:
+                    electrode: Electrode, solves: Predictor) -> tuple[Suggestion, ...]:
     """The suggestions for one finding (empty for rules with no field effect)."""
+    predict = solves.shifted(electrode.lumped_pf)
     if rule_id == "electrode-too-small":
         return _too_small(measured, electrode, predict)
     if rule_id in METRICS:
@@ -88,7 +89,7 @@ def suggestions_for(rule_id: str, measured: Mapping[str, float], layer: str,
     return ()
 
 
-def _one(lever: Lever, value: float, electrode: Electrode, predict: Predictor,
+def _one(lever: Lever, value: float, electrode: Electrode, predict: Predict,
          clears: bool = True, words: str = "") -> Suggestion:
     to = lever.bound if lever.step == 0 else value
     return Suggestion(_said(words or lever.words(value), electrode, clears), lever.parameter,
@@ -105,7 +106,7 @@ def _said(text: str, electrode: Electrode, clears: bool) -> str:
 
 
 def _too_small(measured: Mapping[str, float], electrode: Electrode,
-               predict: Predictor) -> tuple[Suggestion, ...]:
+               predict: Predict) -> tuple[Suggestion, ...]:
     """The rule is geometric: the diameter it wants, or a cover that asks
     for no more than the pad has (closed form), each solved for its effect."""
     have, need = measured["diameter_mm"], measured["min_mm"]
@@ -122,7 +123,7 @@ def _too_small(measured: Mapping[str, float], electrode: Electrode,
 
 
 def _cover_for(have_mm: float, electrode: Electrode,
-               predict: Predictor) -> list[Suggestion | None]:
+               predict: Predict) -> list[Suggestion | None]:
     """Thinner or higher-permittivity cover for which ``have_mm`` is enough."""
     per_mm = electrode.limit("pad_diameter_per_electrical_mm", 10.0)
     electrical = have_mm / per_mm - electrode.config.air_gap_mm  # the cover's share
@@ -140,7 +141,7 @@ def _cover_for(have_mm: float, electrode: Electrode,
 
 
 def _signal_low(rule_id: str, measured: Mapping[str, float], electrode: Electrode,
-                predict: Predictor) -> tuple[Suggestion, ...]:
+                predict: Predict) -> tuple[Suggestion, ...]:
     """Pad diameter that clears, and the single best other change."""
     metric, key = METRICS[rule_id]
     target = measured[key] * (1 + MARGIN)
@@ -176,7 +177,7 @@ def _signal_low(rule_id: str, measured: Mapping[str, float], electrode: Electrod
 
 
 def _gap_tight(measured: Mapping[str, float], electrode: Electrode,
-               predict: Predictor) -> tuple[Suggestion, ...]:
+               predict: Predict) -> tuple[Suggestion, ...]:
     """The gap the rule asks for, and its effect in the model (which holds
     the typical gap: a local pinch wider than that changes nothing there)."""
     have, need = measured["gap_mm"], measured["min_mm"]

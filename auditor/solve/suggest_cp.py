@@ -14,18 +14,20 @@ from auditor.field.api import PadSetup
 from auditor.field.traces import traces_pf
 from auditor.model.suggestions import Suggestion
 from auditor.solve.suggest_levers import Electrode, clear_lever, hatch_lever
-from auditor.solve.suggest_search import Predictor
+from auditor.solve.suggest_search import Predict
 
 #: Shortest sense trace suggested (mm): common practice, no source; value
 #: chosen by padaudit (a controller pin is rarely closer than this to a pad).
 MIN_TRACE_MM = 5.0
 
 
-def contributors(setup: PadSetup, cp_total_pf: float) -> dict[str, float]:
-    """Cp split into pad, trace and vias (pF)."""
+def contributors(setup: PadSetup, cp_total_pf: float, lumped_pf: float = 0.0
+                 ) -> dict[str, float]:
+    """Cp split into pad, trace, vias and (when there is any) the pin and parts (pF)."""
     trace, _ = traces_pf(setup.traces, 0, setup.board_layers, setup.plane_depth_mm)
     vias, _ = traces_pf((), setup.vias, setup.board_layers, setup.plane_depth_mm)
-    return {"pad": cp_total_pf - trace - vias, "trace": trace, "vias": vias}
+    parts = {"pad": cp_total_pf - trace - vias - lumped_pf, "trace": trace, "vias": vias}
+    return {**parts, "pin and parts": lumped_pf} if lumped_pf else parts
 
 
 def shortened(setup: PadSetup, length_mm: float) -> PadSetup:
@@ -37,24 +39,24 @@ def shortened(setup: PadSetup, length_mm: float) -> PadSetup:
 
 
 def cp_suggestions(target_pf: float, electrode: Electrode,
-                   predict: Predictor) -> tuple[Suggestion, ...]:
+                   predict: Predict) -> tuple[Suggestion, ...]:
     """Shorter trace and hatched/cleared plane, most effective first; the
     first says which contributor dominates."""
     setup = electrode.setup
     before = predict(setup)
-    parts = contributors(setup, before.cp_total_pf)
+    parts = contributors(setup, before.cp_total_pf, electrode.lumped_pf)
     out = [s for s in (_shorter_trace(target_pf, electrode, predict, parts["trace"]),
                        *_plane_changes(target_pf, electrode, predict)) if s is not None]
     out.sort(key=lambda s: (s.predicted.cp_total_pf, s.parameter))
     if out:
         name = max(parts, key=lambda k: (parts[k], k))
-        lead = (f"{name} dominates Cp ({parts[name]:.1f} of {before.cp_total_pf:.1f} pF; "
+        lead = (f"largest share of Cp: {name} ({parts[name]:.1f} of {before.cp_total_pf:.1f} pF; "
                 + ", ".join(f"{k} {v:.1f}" for k, v in parts.items()) + "): ")
         out[0] = replace(out[0], change=lead + out[0].change)
     return tuple(out)
 
 
-def _shorter_trace(target_pf: float, electrode: Electrode, predict: Predictor,
+def _shorter_trace(target_pf: float, electrode: Electrode, predict: Predict,
                    trace_pf: float) -> Suggestion | None:
     setup = electrode.setup
     length = sum(run.length_mm for run in setup.traces)
@@ -73,7 +75,7 @@ def _shorter_trace(target_pf: float, electrode: Electrode, predict: Predictor,
 
 
 def _plane_changes(target_pf: float, electrode: Electrode,
-                   predict: Predictor) -> list[Suggestion]:
+                   predict: Predict) -> list[Suggestion]:
     out = []
     for lever in (hatch_lever(electrode), clear_lever(electrode)):
         if lever is None:

@@ -40,7 +40,8 @@ class Electrode:
 
     ``setup``: the quick model's setup that produced its numbers;
     ``mask``: the touch-side solder mask folded into the cover (None for an
-    electrode on the far side); ``plane_layer`` and ``plane_fill_ratio``:
+    electrode on the far side); ``lumped_pf``: what its Cp total holds
+    besides the field model; ``plane_layer`` and ``plane_fill_ratio``:
     the layer and measured hatch fill of the copper the model puts under the
     pad ("" and 0 without); ``disk_model``: False when the electrode's own
     numbers came from another model (the 3-D solve).
@@ -53,6 +54,9 @@ class Electrode:
     plane_layer: str = ""
     plane_fill_ratio: float = 0.0
     disk_model: bool = True
+    #: Capacitance outside the field model in the electrode's Cp total
+    #: (controller pin, parts on the sense net), pF.
+    lumped_pf: float = 0.0
 
     def limit(self, name: str, default: float) -> float:
         """A profile threshold as a float."""

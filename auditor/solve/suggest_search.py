@@ -19,6 +19,9 @@ from dataclasses import dataclass
 from auditor.field.api import PadSetup, solve_pad
 from auditor.model.suggestions import Predicted
 
+#: A setup's predicted numbers (:meth:`Predictor.shifted`).
+Predict = Callable[[PadSetup], Predicted]
+
 
 class Predictor:
     """Solves setups with the quick model, each distinct setup once."""
@@ -33,6 +36,20 @@ class Predictor:
             known = Predicted(solve.cp_total_pf, solve.delta_c_pf, solve.delta_ratio)
             self._solved[setup] = known
         return known
+
+    def shifted(self, lumped_pf: float) -> Predict:
+        """Predictions with ``lumped_pf`` outside the field model (controller
+        pin, parts on the sense net) added to Cp total, as the electrode's
+        own Cp total has it; ΔC is unchanged, ΔC/Cp follows."""
+        if lumped_pf == 0.0:
+            return self
+
+        def predict(setup: PadSetup) -> Predicted:
+            raw = self(setup)
+            total = raw.cp_total_pf + lumped_pf
+            return Predicted(total, raw.delta_c_pf, raw.delta_c_pf / total)
+
+        return predict
 
     @property
     def solves(self) -> int:

@@ -164,7 +164,7 @@ def test_cp_too_high_names_the_trace_and_shortens_it() -> None:
     longer = solved(replace(setup, traces=(TraceRunSpec(0.15, trace.to_value + 1, 1.6, None),)))
     assert trace.predicted == short
     assert short.cp_total_pf <= limit * (1 - MARGIN) < longer.cp_total_pf
-    assert "trace dominates Cp" in out[0].change
+    assert out[0].change.startswith("largest share of Cp: trace")
     clear = next(s for s in out if s.to_value == 0.0 and s.parameter == "plane_fill")
     assert clear.predicted == solved(replace(setup, plane_depth_mm=None))
 
@@ -172,3 +172,16 @@ def test_cp_too_high_names_the_trace_and_shortens_it() -> None:
 def test_rules_without_a_field_effect_get_none() -> None:
     for rule_id in ("series-resistor-far", "trace-crossings", "trace-near-noisy-net"):
         assert suggestions_for(rule_id, {}, "F.Cu", electrode(), Predictor()) == ()
+
+
+def test_capacitance_outside_the_field_model_is_kept_in_cp_total() -> None:
+    # A controller pin of 5 pF adds to Cp in parallel (capacitors in
+    # parallel add, circuit theory); ΔC is unchanged and ΔC/Cp follows.
+    lumped = replace(electrode(), lumped_pf=5.0)
+    hatch, clear = suggestions_for("copper-under-electrode", {}, "B.Cu", lumped, Predictor())
+    field = solved(replace(SETUP, plane_depth_mm=None))
+    assert clear.predicted.cp_total_pf == field.cp_total_pf + 5.0
+    assert clear.predicted.delta_c_pf == field.delta_c_pf
+    assert clear.predicted.delta_ratio == field.delta_c_pf / (field.cp_total_pf + 5.0)
+    out = suggestions_for("cp-too-high", {"max_pf": 6.0}, "F.Cu", lumped, Predictor())
+    assert "pin and parts 5.0" in out[0].change
