@@ -114,7 +114,7 @@ def _too_small(measured: Mapping[str, float], electrode: Electrode,
     pad = pad_lever(electrode)
     if pad is not None:
         to = round(pad.step * -(-(need + 0.01) // pad.step), 4)  # up to the grid
-        out.append(_one(pad, to, electrode, predict))
+        out.append(_one(pad, min(to, pad.bound), electrode, predict, to <= pad.bound + 1e-9))
     if have >= electrode.limit("pad_min_diameter_mm", 0.0):
         alternatives = [s for s in (_cover_for(have, electrode, predict)) if s is not None]
         if alternatives:
@@ -187,7 +187,7 @@ def _gap_tight(measured: Mapping[str, float], electrode: Electrode,
     modelled = max(setup.gap_mm, need)
     lever = Lever("ground_gap_mm", have, need, 0.0, lambda _: with_gap(setup, modelled),
                   lambda _: "")
-    words = f"widen the narrowest gap to ground from {have:.2f} to {need:.2f} mm"
+    words = f"widen the narrowest gap to the surrounding copper from {have:.2f} to {need:.2f} mm"
     if setup.gap_mm >= need:
         words += (f" (the model's typical gap is already {setup.gap_mm:.2f} mm, so the "
                   "predicted figures stay)")
