@@ -11,18 +11,20 @@ electrodes without field results.
 
 from __future__ import annotations
 
+import contextlib
 from collections.abc import Mapping
 from dataclasses import replace
 
 from auditor.config import Config
-from auditor.decide.records import DecidedFinding, Report
+from auditor.decide.records import Report
+from auditor.errors import UsageError
 from auditor.model.board import Board
 from auditor.model.results import PadMetrics
 from auditor.model.suggestions import Predicted
 from auditor.sensors.model import Sensor
 from auditor.solve.suggest import SUGGESTING_RULES, electrode_for, suggestions_for
 from auditor.solve.suggest_levers import Electrode
-from auditor.solve.suggest_search import Predictor
+from auditor.solve.suggest_search import Predictor, Recorder
 
 
 def lumped_pf(solved: PadMetrics, field: Predicted) -> float:
@@ -35,32 +37,54 @@ def lumped_pf(solved: PadMetrics, field: Predicted) -> float:
 
 def with_suggestions(report: Report, board: Board, sensors: tuple[Sensor, ...],
                      config: Config, thresholds: Mapping[str, float | int | bool]) -> Report:
-    """``report`` with suggestions on the findings a field change fixes."""
-    predict = Predictor()
+    """``report`` with suggestions on the findings a field change fixes.
+
+    A dry run first notes the setups every search starts from; they are
+    solved together (in helper processes when a core is free), then the
+    searches run on those solves.
+    """
     by_name = {s.name: s for s in sensors}
     metrics = {r.sensor.name: r.metrics for r in report.sensors}
     electrodes: dict[str, Electrode | None] = {}
-
-    def electrode(name: str, solved: PadMetrics) -> Electrode | None:
-        if name not in electrodes:
-            found = electrode_for(by_name[name], board, config, thresholds,
-                                  disk_model=solved.method == "quick")
-            if found is not None and found.disk_model:
-                found = replace(found, lumped_pf=lumped_pf(solved, predict(found.setup)))
-            electrodes[name] = found
-        return electrodes[name]
-
-    def suggested(decided: DecidedFinding) -> DecidedFinding:
+    wanted: list[tuple[int, Electrode]] = []
+    for index, decided in enumerate(report.findings):
         finding = decided.finding
         solved = metrics.get(finding.sensor)
         if (decided.waived or finding.rule_id not in SUGGESTING_RULES
                 or finding.sensor not in by_name or solved is None):
-            return decided
-        found = electrode(finding.sensor, solved)
-        if found is None:
-            return decided
-        made = suggestions_for(finding.rule_id, dict(finding.measured), finding.layer,
-                               found, predict)
-        return replace(decided, suggestions=made) if made else decided
+            continue
+        if finding.sensor not in electrodes:
+            electrodes[finding.sensor] = electrode_for(
+                by_name[finding.sensor], board, config, thresholds,
+                disk_model=solved.method == "quick")
+        found = electrodes[finding.sensor]
+        if found is not None:
+            wanted.append((index, found))
+    predict = _prefetched(report, wanted)
+    findings = list(report.findings)
+    for index, found in wanted:
+        finding = findings[index].finding
+        solved = metrics[finding.sensor]
+        if found.disk_model and solved is not None:
+            found = replace(found, lumped_pf=lumped_pf(solved, predict(found.setup)))
+        try:
+            made = suggestions_for(finding.rule_id, dict(finding.measured), finding.layer,
+                                   found, predict)
+        except UsageError:  # a changed setup the model cannot take: no suggestion
+            made = ()
+        if made:
+            findings[index] = replace(findings[index], suggestions=made)
+    return replace(report, findings=tuple(findings))
 
-    return replace(report, findings=tuple(suggested(d) for d in report.findings))
+
+def _prefetched(report: Report, wanted: list[tuple[int, Electrode]]) -> Predictor:
+    """A predictor holding the solves every suggestion search starts from."""
+    recorder = Recorder()
+    for index, found in wanted:
+        finding = report.findings[index].finding
+        with contextlib.suppress(UsageError):  # the real run skips it too
+            suggestions_for(finding.rule_id, dict(finding.measured), finding.layer, found,
+                            recorder)
+    predict = Predictor()
+    predict.prefetch(recorder.asked)
+    return predict

@@ -13,10 +13,12 @@ cached (:class:`Predictor`).
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Iterable, Sequence
 from dataclasses import dataclass
 
+from auditor.errors import UsageError
 from auditor.field.api import PadSetup, solve_pad
+from auditor.field.batch import PadBatch
 from auditor.model.suggestions import Predicted
 
 #: A setup's predicted numbers (:meth:`Predictor.shifted`).
@@ -55,6 +57,35 @@ class Predictor:
     def solves(self) -> int:
         """How many distinct setups were solved."""
         return len(self._solved)
+
+    def prefetch(self, setups: Iterable[PadSetup], workers: int | None = None) -> None:
+        """Solve ``setups`` ahead, over helper processes when a core is free
+        (:class:`PadBatch`: the same bits as solving them here)."""
+        batch = PadBatch(workers)
+        for setup in setups:
+            if setup not in self._solved:
+                try:
+                    batch.add(setup)
+                except UsageError:  # left for the search, which says so
+                    continue
+        for setup, solve in batch.results().items():
+            self._solved[setup] = Predicted(solve.cp_total_pf, solve.delta_c_pf,
+                                            solve.delta_ratio)
+
+
+class Recorder(Predictor):
+    """A stand-in that solves nothing: it notes every setup asked for and
+    answers "no signal" (Cp 1 pF, no ΔC), so a dry run of the suggestions
+    notes the setups any run asks first (each lever's end of range, the
+    discrete changes, the unchanged setup) for :meth:`Predictor.prefetch`."""
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.asked: dict[PadSetup, None] = {}
+
+    def __call__(self, setup: PadSetup) -> Predicted:
+        self.asked[setup] = None
+        return Predicted(1.0, 0.0, 0.0)
 
 
 @dataclass(frozen=True)

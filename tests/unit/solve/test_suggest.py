@@ -21,7 +21,7 @@ from auditor.field.api import BoardLayer, PadSetup, TraceRunSpec, solve_pad
 from auditor.model.suggestions import Predicted
 from auditor.solve.suggest import MARGIN, suggestions_for
 from auditor.solve.suggest_levers import Electrode
-from auditor.solve.suggest_search import Predictor, grid_values, smallest_clearing
+from auditor.solve.suggest_search import Predictor, Recorder, grid_values, smallest_clearing
 
 LIMITS = {"pad_min_diameter_mm": 6.0, "pad_diameter_per_electrical_mm": 10.0,
           "pad_max_diameter_mm": 20.0, "ground_gap_max_mm": 2.0, "under_fill_max_ratio": 0.5}
@@ -185,3 +185,17 @@ def test_capacitance_outside_the_field_model_is_kept_in_cp_total() -> None:
     assert clear.predicted.delta_ratio == field.delta_c_pf / (field.cp_total_pf + 5.0)
     out = suggestions_for("cp-too-high", {"max_pf": 6.0}, "F.Cu", lumped, Predictor())
     assert "pin and parts 5.0" in out[0].change
+
+
+def test_dry_run_notes_the_first_setups_and_prefetch_gives_the_same_numbers() -> None:
+    # The dry run asks for the unchanged setup and each discrete change; the
+    # prefetched solves (helper processes allowed) equal direct solves.
+    recorder = Recorder()
+    suggestions_for("copper-under-electrode", {}, "B.Cu", electrode(), recorder)
+    hatched, cleared = replace(SETUP, plane_fill=0.5), replace(SETUP, plane_depth_mm=None)
+    assert set(recorder.asked) == {SETUP, hatched, cleared}
+    predict = Predictor()
+    predict.prefetch(recorder.asked, workers=2)
+    assert predict.solves == 3
+    assert [predict(s) for s in (SETUP, hatched, cleared)] == [
+        solved(SETUP), solved(hatched), solved(cleared)]
