@@ -18,6 +18,7 @@ from dataclasses import replace
 from auditor.config import Config
 from auditor.decide.records import Report
 from auditor.errors import UsageError
+from auditor.field.api import PadSetup
 from auditor.model.board import Board
 from auditor.model.results import PadMetrics
 from auditor.model.suggestions import Predicted
@@ -27,12 +28,18 @@ from auditor.solve.suggest_levers import Electrode
 from auditor.solve.suggest_search import Predictor, Recorder
 
 
-def lumped_pf(solved: PadMetrics, field: Predicted) -> float:
-    """What the electrode's Cp total holds besides its field model (the
-    controller pin, parts on the sense net): the difference between its
-    quick metrics and the solve of the same setup, 0 when there is none."""
-    extra = solved.cp_total_pf - field.cp_total_pf
+def lumped_pf(solved: PadMetrics) -> float:
+    """What the electrode's Cp total holds besides the field model's pad and
+    trace (the controller pin, parts on the sense net), 0 when nothing."""
+    extra = solved.cp_total_pf - (solved.cp_pad_pf + solved.cp_trace_pf)
     return extra if extra > 1e-9 else 0.0
+
+
+def field_part(solved: PadMetrics) -> Predicted:
+    """The quick metrics of an electrode as the solve of its own setup gave
+    them (pad and trace; the lumped rest is added back by the predictor)."""
+    field = solved.cp_pad_pf + solved.cp_trace_pf
+    return Predicted(field, solved.delta_c_pf, solved.delta_c_pf / field)
 
 
 def with_suggestions(report: Report, board: Board, sensors: tuple[Sensor, ...],
@@ -54,19 +61,19 @@ def with_suggestions(report: Report, board: Board, sensors: tuple[Sensor, ...],
                 or finding.sensor not in by_name or solved is None):
             continue
         if finding.sensor not in electrodes:
-            electrodes[finding.sensor] = electrode_for(
-                by_name[finding.sensor], board, config, thresholds,
-                disk_model=solved.method == "quick")
+            found = electrode_for(by_name[finding.sensor], board, config, thresholds,
+                                  disk_model=solved.method == "quick")
+            electrodes[finding.sensor] = (replace(found, lumped_pf=lumped_pf(solved))
+                                          if found is not None else None)
         found = electrodes[finding.sensor]
         if found is not None:
             wanted.append((index, found))
-    predict = _prefetched(report, wanted)
+    known = {e.setup: field_part(m) for name, e in electrodes.items()
+             if e is not None and e.disk_model and (m := metrics[name]) is not None}
+    predict = _prefetched(report, wanted, known)
     findings = list(report.findings)
     for index, found in wanted:
         finding = findings[index].finding
-        solved = metrics[finding.sensor]
-        if found.disk_model and solved is not None:
-            found = replace(found, lumped_pf=lumped_pf(solved, predict(found.setup)))
         try:
             made = suggestions_for(finding.rule_id, dict(finding.measured), finding.layer,
                                    found, predict)
@@ -77,14 +84,16 @@ def with_suggestions(report: Report, board: Board, sensors: tuple[Sensor, ...],
     return replace(report, findings=tuple(findings))
 
 
-def _prefetched(report: Report, wanted: list[tuple[int, Electrode]]) -> Predictor:
-    """A predictor holding the solves every suggestion search starts from."""
+def _prefetched(report: Report, wanted: list[tuple[int, Electrode]],
+                known: Mapping[PadSetup, Predicted]) -> Predictor:
+    """A predictor holding the solves every suggestion search starts from;
+    ``known``: the electrodes' own setups, already solved by the audit."""
     recorder = Recorder()
     for index, found in wanted:
         finding = report.findings[index].finding
         with contextlib.suppress(UsageError):  # the real run skips it too
             suggestions_for(finding.rule_id, dict(finding.measured), finding.layer, found,
                             recorder)
-    predict = Predictor()
+    predict = Predictor(known)
     predict.prefetch(recorder.asked)
     return predict

@@ -13,7 +13,7 @@ cached (:class:`Predictor`).
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Iterable, Sequence
+from collections.abc import Callable, Iterable, Mapping, Sequence
 from dataclasses import dataclass
 
 from auditor.errors import UsageError
@@ -28,8 +28,9 @@ Predict = Callable[[PadSetup], Predicted]
 class Predictor:
     """Solves setups with the quick model, each distinct setup once."""
 
-    def __init__(self) -> None:
-        self._solved: dict[PadSetup, Predicted] = {}
+    def __init__(self, known: Mapping[PadSetup, Predicted] | None = None) -> None:
+        #: ``known``: setups already solved elsewhere (the audit's own solves)
+        self._solved: dict[PadSetup, Predicted] = dict(known or {})
 
     def __call__(self, setup: PadSetup) -> Predicted:
         known = self._solved.get(setup)

@@ -116,3 +116,15 @@ def test_suggestions_on_every_kind_and_none_on_routing(bad: Report) -> None:
     for d in bad.findings:
         if d.finding.rule_id.startswith(("trace-", "series-")):
             assert d.suggestions == ()
+
+
+def test_before_is_the_electrode_s_own_figures(bad: Report) -> None:
+    # "before" is the electrode's own quick result, the same numbers as its
+    # row in the electrode table (same model, same setup).
+    metrics = {r.sensor.name: r.metrics for r in bad.sensors}
+    for d in bad.findings:
+        m = metrics.get(d.finding.sensor)
+        for s in d.suggestions:
+            assert m is not None
+            assert (s.before.cp_total_pf, s.before.delta_c_pf, s.before.delta_ratio) == (
+                m.cp_total_pf, m.delta_c_pf, m.delta_ratio)
