@@ -99,7 +99,12 @@ class Sensor:
 
     ``name`` is unique on the board and stable across re-saves (reference or
     net based). ``x_mm``/``y_mm`` is the copper's centroid, or a point on the
-    copper when the centroid falls outside it (a loop). ``group`` and ``index`` order slider/wheel segments.
+    copper when the centroid falls outside it (a loop).
+
+    ``group`` names the slider, wheel or mutual pair the electrode belongs to
+    (all its segments share it) and is empty for a lone electrode; ``index``
+    orders the segments within the group. Rules use ``group`` to leave the
+    designed closeness of one group's segments alone.
     """
 
     name: str
