@@ -13,11 +13,12 @@ from collections.abc import Collection, Sequence
 from shapely import STRtree
 from shapely.geometry import LineString, MultiLineString
 from shapely.geometry.base import BaseGeometry
-from shapely.ops import nearest_points, unary_union
+from shapely.ops import nearest_points
 
 from auditor.model.board import Board
 from auditor.model.geometry import Arc
 from auditor.model.items import Track
+from auditor.sensors import robust
 from auditor.sensors.model import Neighbour, Sensor
 from auditor.sensors.selection import SensorSelection, matches
 from auditor.sensors.spatial import items_in_box, pieces_in
@@ -81,13 +82,13 @@ def _beside(board: Board, layer: str, width_mm: float, tracks: Sequence[Track],
         near.setdefault(piece.item.net, []).append(piece.geometry)
     if not near:
         return []
-    copper_of_path = unary_union([t.geometry for t in tracks])
+    copper_of_path = robust.union([t.geometry for t in tracks])
     out = []
     for net, geoms in sorted(near.items()):
-        copper = unary_union(geoms)
+        copper = robust.union(geoms)
         if copper.is_empty:
             continue
-        length = float(lines.intersection(copper.buffer(reach, quad_segs=8)).length)
+        length = float(robust.intersection(lines, copper.buffer(reach, quad_segs=8)).length)
         on_path = nearest_points(copper_of_path, copper)[0]
         out.append((net, length, float(copper_of_path.distance(copper)),
                     (float(on_path.x), float(on_path.y))))

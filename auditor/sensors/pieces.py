@@ -15,10 +15,10 @@ from dataclasses import dataclass
 from shapely import STRtree
 from shapely.geometry import MultiPolygon, Polygon
 from shapely.geometry.base import BaseGeometry
-from shapely.ops import unary_union
 
 from auditor.model.board import Board, CopperItem
 from auditor.model.items import Pad, Zone
+from auditor.sensors import robust
 
 AREA_SOURCES = ("pad", "zone", "graphic")
 
@@ -66,7 +66,7 @@ def pieces_on(board: Board, layer: str, nets: Collection[str]) -> tuple[Piece, .
     for net in sorted(set(by_net) | set(extra)):
         own = by_net.get(net, [])
         merged = extra.get(net, [])
-        union = unary_union([it.geometry for it in own] + merged)
+        union = robust.union([it.geometry for it in own] + merged)
         for poly in _polygons(union):
             pieces.append(_piece(board, net, layer, poly, own, bool(merged)))
     return tuple(pieces)
@@ -81,7 +81,7 @@ def _netless_by_net(board: Board, layer: str,
     pads = [it for it in items if it.source == "pad" and it.net != ""]
     tree = STRtree([it.geometry for it in pads])
     out: dict[str, list[BaseGeometry]] = {}
-    for comp in _polygons(unary_union(loose)):
+    for comp in _polygons(robust.union(loose)):
         touched = {pads[i].net for i in tree.query(comp, predicate="intersects")}
         if len(touched) == 1:
             out.setdefault(touched.pop(), []).append(comp)

@@ -20,6 +20,7 @@ from shapely.geometry import MultiPolygon, Polygon
 from shapely.geometry.base import BaseGeometry
 
 from auditor.model.board import Board, CopperItem
+from auditor.sensors import robust
 
 Bounds = tuple[float, float, float, float]
 
@@ -92,7 +93,7 @@ def pieces_in(board: Board, layer: str, region: BaseGeometry,
         if region.contains(piece.geometry):
             found.append(piece)
             continue
-        cut = piece.geometry.intersection(region)
+        cut = robust.intersection(piece.geometry, region)
         if not cut.is_empty:
             found.append(Piece(piece.item, cut))
     return found
@@ -185,7 +186,7 @@ def _fills_area(board: Board, layer: str, net: str, pieces: tuple[Piece, ...]) -
     left, right = STRtree(geometries).query(geometries, predicate="intersects")
     for a, b in zip(left.tolist(), right.tolist(), strict=True):
         if a < b and mine[a].item is not mine[b].item:
-            total -= float(mine[a].geometry.intersection(mine[b].geometry).area)
+            total -= float(robust.intersection(mine[a].geometry, mine[b].geometry).area)
     return total
 
 
