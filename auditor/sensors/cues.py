@@ -97,10 +97,12 @@ def has_word(name: str, words: tuple[str, ...]) -> bool:
 def is_ground_name(net: str) -> bool:
     """Ground-like net names: GND, AGND, GND_ISO, VSS, GROUND, 0V ...
 
-    >>> [is_ground_name(n) for n in ("GND", "/p/AGND", "VSS", "GNDA", "VSENSE")]
-    [True, True, True, True, False]
+    >>> [is_ground_name(n) for n in ("GND", "/p/AGND", "VSS", "GNDA", "VSENSE", "USBGND")]
+    [True, True, True, True, False, True]
     """
-    return bool(_GROUND.match(leaf(net).upper()))
+    name = leaf(net).upper()
+    # Returns named for their domain (USBGND, SHIELD_GND) are grounds too.
+    return bool(_GROUND.match(name)) or (not is_auto_name(net) and "GND" in name)
 
 
 def trailing_index(name: str) -> int | None:

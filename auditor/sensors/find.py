@@ -24,14 +24,19 @@ from dataclasses import dataclass
 
 from auditor.model.board import Board
 from auditor.model.items import NetClass
+from auditor.sensors import robust
 from auditor.sensors.cues import is_ground_name, name_cue
 from auditor.sensors.model import Sensor
 from auditor.sensors.pieces import Piece, outer_layers, pads_by_net, pieces_on
 from auditor.sensors.reach import reach_of
+from auditor.sensors.roles import is_electrode_part, part_pads_only
 from auditor.sensors.selection import SensorSelection, matches
 from auditor.sensors.shaping import Candidate, shaped_sensors
+from auditor.sensors.siblings import SIBLING_FLOOR_MM2, alike_siblings, netless_touch_copper
 from auditor.sensors.spatial import net_copper_area
 
+#: Share of a back piece that front copper of its net must cover to be its twin.
+TWIN_SHARE = 0.8
 #: Nets with more pads than this are supply or bus nets, never one electrode.
 MAX_PADS_ON_SENSE_NET = 12
 
@@ -107,6 +112,7 @@ class _Finder:
                         or (sel.ground_nets and matches(n, sel.ground_nets))}
         self.accepted: list[Candidate] = []
         self.rejects: list[Rejected] = []
+        self.small: list[tuple[Piece, str]] = []  # touch-named pads under the floor
 
     def run(self) -> tuple[tuple[Sensor, ...], tuple[Rejected, ...]]:
         by_net: dict[str, list[Piece]] = {}
@@ -115,6 +121,8 @@ class _Finder:
         for net in sorted(by_net):
             self._judge_net(net, sorted(by_net[net], key=lambda p: -p.area_mm2))
         self._reject_unfilled_zones()
+        self._judge_small()
+        self._reject_netless()
         sensors = shaped_sensors(self.board, self.sel, self.accepted)
         return sensors, tuple(sorted(self.rejects, key=lambda r: (r.net, r.layer, r.x_mm)))
 
@@ -188,7 +196,35 @@ class _Finder:
         elif self.sel.automatic and not taken:
             self._judge_auto(net, rest)
 
+    def _judge_small(self) -> None:
+        """Touch-named pads under the floor, taken when alike siblings back them."""
+        cues = dict((id(p), cue) for p, cue in self.small)
+        taken = alike_siblings([p for p, _ in self.small])
+        for piece, family in taken:
+            self._accept(piece, f"{cues[id(piece)]}; {piece.area_mm2:.1f} mm², one of "
+                         f"{family} alike touch-named pads")
+        kept = {id(p) for p, _ in taken}
+        for piece, cue in self.small:
+            if id(piece) not in kept:
+                self._reject(piece, f"{cue}, but its largest copper is {piece.area_mm2:.1f} "
+                             f"mm² (needs {self.sel.cue_min_area_mm2:g} mm², or an alike "
+                             "sibling pad)")
+
+    def _reject_netless(self) -> None:
+        for ref, layer, area, x, y in netless_touch_copper(self.board):
+            self.rejects.append(Rejected(
+                "", (ref,), layer, round(area, 6), round(x, 6), round(y, 6),
+                f"touch footprint {ref} has {area:.0f} mm² of copper without a net (drawn "
+                "before the schematic?): an electrode without a net cannot be followed "
+                "to a controller; give it a net"))
+
+    def _is_never_electrode(self, piece: Piece) -> bool:
+        """Pads only, all of controllers, connectors or modules."""
+        return set(piece.sources) <= {"pad", "custom pad"} and part_pads_only(
+            self.board, piece.pads, self.sel.controller_min_pads)
+
     def _judge_configured(self, net: str, pieces: list[Piece], reason: str) -> None:
+        pieces = [p for p in pieces if not self._is_never_electrode(p)]
         big = [p for p in pieces if p.area_mm2 >= self.sel.cue_min_area_mm2]
         if not big and pieces and not self._is_part_pad(pieces[0]):
             big = pieces[:1]
@@ -203,13 +239,17 @@ class _Finder:
             len(self.board.footprint(uid).pads) >= 2 for uid in piece.footprint_uids)
 
     def _judge_auto(self, net: str, pieces: list[Piece]) -> None:
+        pieces = [p for p in pieces if not self._is_never_electrode(p)]
         cue, strong = self._cue(net, pieces[0] if pieces else None)
         took = False
         for piece in pieces:
             took |= self._judge_auto_piece(piece, cue, strong)
         if cue and not took and pieces:
             top = pieces[0]
-            if top.area_mm2 < self.sel.cue_min_area_mm2 and not self._is_part_pad(top):
+            if top.area_mm2 < self.sel.cue_min_area_mm2 and not self._is_part_pad(top) \
+                    and top.area_mm2 >= SIBLING_FLOOR_MM2:
+                self.small.append((top, cue))
+            elif top.area_mm2 < self.sel.cue_min_area_mm2 and not self._is_part_pad(top):
                 self._reject(top, f"{cue}, but its largest copper is {top.area_mm2:.1f} mm² "
                              f"(needs {self.sel.cue_min_area_mm2:g} mm²)")
 
@@ -240,10 +280,10 @@ class _Finder:
         cue = name_cue(net)
         if cue:
             return f"net name has {cue.word!r}", cue.strong
-        for uid in piece.footprint_uids if piece else ():
+        for uid in piece.owner_uids if piece else ():
             fp = self.board.footprint(uid)
             lib_cue = name_cue(fp.lib_id.split(":")[-1]) or name_cue(fp.value)
-            if lib_cue and lib_cue.strong:
+            if lib_cue and lib_cue.strong or is_electrode_part(fp):
                 return f"footprint {fp.ref} is {fp.lib_id or fp.value!r}", True
         return "", False
 
@@ -258,11 +298,19 @@ class _Finder:
 
 
 def _without_through_hole_twins(pieces: list[Piece], front_layer: str) -> list[Piece]:
-    """Drop a back piece that is only the far side of through-hole pads seen on the front."""
-    def key(p: Piece) -> tuple[str, tuple[tuple[str, str], ...]] | None:
-        if not p.pads or not set(p.sources) <= {"pad", "custom pad"}:
-            return None
-        return p.net, tuple(sorted((q.footprint_uid, q.number) for q in p.pads))
+    """Drop a back piece that is only the far side of the front copper: its pads
+    are all pads of a front piece of the net (through-hole pads), or it lies
+    under a front piece of the net (one pad drawn on both faces)."""
+    front = [p for p in pieces if p.layer == front_layer]
+    keys: dict[str, set[tuple[str, str]]] = {}
+    for p in front:
+        keys.setdefault(p.net, set()).update((q.footprint_uid, q.number) for q in p.pads)
 
-    front = {key(p) for p in pieces if p.layer == front_layer} - {None}
-    return [p for p in pieces if p.layer == front_layer or key(p) not in front]
+    def twin(p: Piece) -> bool:
+        pads = {(q.footprint_uid, q.number) for q in p.pads}
+        if pads and set(p.sources) <= {"pad", "custom pad"} and pads <= keys.get(p.net, set()):
+            return True
+        return any(f.net == p.net and float(robust.intersection(f.geometry, p.geometry).area)
+                   >= TWIN_SHARE * p.area_mm2 for f in front)
+
+    return [p for p in pieces if p.layer == front_layer or not twin(p)]

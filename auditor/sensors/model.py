@@ -61,6 +61,8 @@ class SensePath:
     under_electrodes: tuple[str, ...] = ()  # other sensors it passes under/beside
     complete: bool = True  # False when the path could not be followed to a pin
     nets: tuple[str, ...] = ()  # nets along the path: electrode's, then after the series part
+    #: The path ends at a connector (``controller_ref``) to a controller on another board.
+    off_board: bool = False
 
 
 @dataclass(frozen=True)

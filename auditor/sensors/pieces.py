@@ -33,6 +33,8 @@ class Piece:
     pads: tuple[Pad, ...]
     zones: tuple[Zone, ...]
     sources: tuple[str, ...]  # sorted kinds: pad, custom pad, zone, graphic, net-less copper
+    #: Footprints whose copper graphics are part of the piece (no pad needed).
+    graphic_owners: tuple[str, ...] = ()
 
     @property
     def area_mm2(self) -> float:
@@ -43,6 +45,11 @@ class Piece:
     def footprint_uids(self) -> tuple[str, ...]:
         """Footprints with a pad in the piece, sorted."""
         return tuple(sorted({p.footprint_uid for p in self.pads}))
+
+    @property
+    def owner_uids(self) -> tuple[str, ...]:
+        """Footprints with a pad or a copper graphic in the piece, sorted."""
+        return tuple(sorted(set(self.footprint_uids) | set(self.graphic_owners)))
 
 
 def outer_layers(board: Board) -> tuple[str, ...]:
@@ -55,9 +62,10 @@ def outer_layers(board: Board) -> tuple[str, ...]:
 
 def pieces_on(board: Board, layer: str, nets: Collection[str]) -> tuple[Piece, ...]:
     """Area-copper pieces of ``nets`` on ``layer``, net-less copper merged in."""
-    items = [it for it in board.items_on(layer) if it.source in AREA_SOURCES]
+    every = board.items_on(layer)
+    items = [it for it in every if it.source in AREA_SOURCES]
     netted = [it for it in items if it.net in nets]
-    extra = {net: geoms for net, geoms in _netless_by_net(board, layer, items).items()
+    extra = {net: geoms for net, geoms in _netless_by_net(board, layer, every).items()
              if net in nets}
     by_net: dict[str, list[CopperItem]] = {}
     for it in netted:
@@ -68,17 +76,25 @@ def pieces_on(board: Board, layer: str, nets: Collection[str]) -> tuple[Piece, .
         merged = extra.get(net, [])
         union = robust.union([it.geometry for it in own] + merged)
         for poly in _polygons(union):
-            pieces.append(_piece(board, net, layer, poly, own, bool(merged)))
+            pieces.append(_piece(board, net, layer, poly, own + (_loose_items(board, layer) if merged else []),
+                                 bool(merged)))
     return tuple(pieces)
 
 
+def _loose_items(board: Board, layer: str) -> list[CopperItem]:
+    return [it for it in board.items_on(layer) if it.net == "" and it.source in ("zone", "graphic")]
+
+
 def _netless_by_net(board: Board, layer: str,
-                    items: list[CopperItem]) -> dict[str, list[BaseGeometry]]:
-    """Net-less copper components keyed by the one net whose pad they touch."""
-    loose = [it.geometry for it in items if it.net == "" and it.source != "pad"]
+                    items: Collection[CopperItem]) -> dict[str, list[BaseGeometry]]:
+    """Net-less copper components keyed by the one net whose pads, tracks or
+    vias touch them (an electrode drawn as footprint art, fed by a via)."""
+    loose = [it.geometry for it in items if it.net == "" and it.source in ("zone", "graphic")]
     if not loose:
         return {}
-    pads = [it for it in items if it.source == "pad" and it.net != ""]
+    pads = [it for it in items if it.source in ("pad", "track", "via") and it.net != ""]
+    if not pads:
+        return {}
     tree = STRtree([it.geometry for it in pads])
     out: dict[str, list[BaseGeometry]] = {}
     for comp in _polygons(robust.union(loose)):
@@ -105,9 +121,10 @@ def _piece(board: Board, net: str, layer: str, poly: Polygon, own: list[CopperIt
     zones = tuple(z for z in _zones_of(board, net) if _touches(z.fill_on(layer), probe))
     sources = {("custom pad" if p.shape == "custom" else "pad") for p in pads}
     sources.update(it.source for it in inside if it.source != "pad")
+    owners = tuple(sorted({it.owner for it in inside if it.source == "graphic" and it.owner}))
     if netless:
         sources.add("net-less copper")
-    return Piece(net, layer, poly, pads, zones, tuple(sorted(sources)))
+    return Piece(net, layer, poly, pads, zones, tuple(sorted(sources)), owners)
 
 
 def _pads_of(board: Board, net: str) -> tuple[Pad, ...]:
