@@ -59,7 +59,8 @@ def is_connector(fp: Footprint) -> bool:
         return True
     prefix = re.match(r"[A-Za-z]+", fp.ref)
     numbers = {p.number for p in fp.pads if p.kind != "np_thru_hole"}
-    return bool(prefix) and prefix.group(0).upper() in CONNECTOR_PREFIXES and len(numbers) >= 2
+    return prefix is not None and prefix.group(0).upper() in CONNECTOR_PREFIXES \
+        and len(numbers) >= 2
 
 
 def is_module(fp: Footprint) -> bool:

@@ -48,12 +48,12 @@ def netless_touch_copper(board: Board) -> list[tuple[str, str, float, float, flo
     for fp in board.footprints:
         if not is_electrode_part(fp) or any(p.net for p in fp.pads):
             continue
-        shapes = [s for p in fp.pads for s in p.copper if s.layer in outer]
-        shapes += [g for g in fp.graphics if g.layer in outer and not g.net]
+        shapes = [(s.layer, s.geometry) for p in fp.pads for s in p.copper if s.layer in outer]
+        shapes += [(g.layer, g.geometry) for g in fp.graphics if g.layer in outer and not g.net]
         if not shapes or _fed(board, fp.uid):
             continue
-        layer = shapes[0].layer
-        geom = unary_union([s.geometry for s in shapes if s.layer == layer])
+        layer = shapes[0][0]
+        geom = unary_union([g for lay, g in shapes if lay == layer])
         c = geom.centroid
         found.append((fp.ref, layer, float(geom.area), float(c.x), float(c.y)))
     return found
