@@ -32,7 +32,7 @@ OTHER_FUNCTION_WORDS = frozenset({
     "rst", "reset", "boot", "gnd", "vss", "sw", "irq", "int", "scl", "sda", "clk", "pwm",
     "tx", "rx", "spi", "usb", "test", "dbg", "swd", "swdio", "swclk", "jtag",
 })
-SLIDER_WORDS = ("slider", "sld", "slide")
+SLIDER_WORDS = ("slider", "sld", "slide", "fader")
 WHEEL_WORDS = ("wheel", "whl", "rotary", "scroll")
 PROXIMITY_WORDS = ("prox", "proximity", "guard", "loop")
 
@@ -90,8 +90,14 @@ def name_cue(name: str) -> NameCue | None:
 
 
 def has_word(name: str, words: tuple[str, ...]) -> bool:
-    """True when a token of ``name`` starts with one of ``words``."""
-    return any(tok.startswith(w) for tok in tokens(name) for w in words)
+    """True when a token of ``name`` starts with one of ``words``, or holds one
+    of five letters or more (``TOUCHROTARY``, ``TouchSlider3``).
+
+    >>> has_word("TOUCHROTARY1B", ("rotary",)), has_word("SLDR", ("slider",))
+    (True, False)
+    """
+    toks = tokens(name)
+    return any(tok.startswith(w) or (len(w) >= 5 and w in tok) for tok in toks for w in words)
 
 
 def is_ground_name(net: str) -> bool:

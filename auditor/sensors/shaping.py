@@ -55,8 +55,8 @@ def shaped_sensors(board: Board, sel: SensorSelection,
     """Sensors for ``candidates``: unique names, kinds, groups and order, sorted by name."""
     names = _unique_names(board, candidates)
     sensors = [_sensor(board, c, names[i]) for i, c in enumerate(candidates)]
-    sensors = _kinds(board, sel, candidates, sensors)
-    sensors = grouped_by_layout(sensors, set())
+    sensors, fixed = _kinds(board, sel, candidates, sensors)
+    sensors = grouped_by_layout(sensors, fixed)
     sensors = _ordered_groups(sensors)
     return tuple(sorted(sensors, key=lambda s: name_order(s.name)))
 
@@ -126,14 +126,28 @@ def _words(board: Board, cand: Candidate) -> str:
 
 
 def _kinds(board: Board, sel: SensorSelection, candidates: Sequence[Candidate],
-           sensors: list[Sensor]) -> list[Sensor]:
+           sensors: list[Sensor]) -> tuple[list[Sensor], set[str]]:
+    """Sensors with kinds and groups, and the names typed by configuration or
+    words (layout grouping leaves those alone)."""
     sides = [_mutual_side(c.piece.net) for c in candidates]
     naming_mutual = "tx" in sides and "rx" in sides
-    out = []
+    out, fixed = [], set()
+    areas = [c.piece.area_mm2 for c in candidates]
     for cand, sensor, side in zip(candidates, sensors, sides, strict=True):
         kind, group = _kind(board, sel, cand, side if naming_mutual else "")
+        if kind == "button" and _looks_proximity(sel, cand.piece) \
+                and _alike_count(cand.piece.area_mm2, areas) < 3:
+            kind = "proximity"
+        elif kind != "button":
+            fixed.add(sensor.name)
         out.append(replace(sensor, kind=kind, group=group))
-    return out
+    return out, fixed
+
+
+def _alike_count(area: float, areas: Sequence[float]) -> int:
+    """How many electrodes (this one included) have about this area: a bank
+    of alike large pads is keys or a slider, not proximity loops."""
+    return sum(1 for a in areas if abs(a - area) <= 0.1 * max(a, area))
 
 
 def _kind(board: Board, sel: SensorSelection, cand: Candidate,
@@ -156,7 +170,7 @@ def _kind(board: Board, sel: SensorSelection, cand: Candidate,
         return "wheel", _group_name(board, cand)
     if has_word(words, SLIDER_WORDS):
         return "slider", _group_name(board, cand)
-    if has_word(words, PROXIMITY_WORDS) or _looks_proximity(sel, cand.piece):
+    if has_word(words, PROXIMITY_WORDS):
         return "proximity", ""
     return "button", ""
 
