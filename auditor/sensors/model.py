@@ -13,7 +13,10 @@ from typing import Literal
 
 from shapely.geometry.base import BaseGeometry
 
-SensorKind = Literal["button", "slider", "wheel", "proximity", "mutual-tx", "mutual-rx"]
+#: ``keyswitch``: one pad of an electro-capacitive key switch's pad pair (a
+#: capacitive sensor, but a mechanical key moves it, not a finger).
+SensorKind = Literal["button", "slider", "wheel", "proximity", "mutual-tx", "mutual-rx",
+                     "keyswitch"]
 
 
 @dataclass(frozen=True)

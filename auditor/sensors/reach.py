@@ -113,10 +113,13 @@ def _two_terminal(fp: Footprint) -> bool:
 
 
 def _attached(board: Board, net: str, skip: set[str]) -> dict[str, tuple[Pad, ...]]:
-    """Parts on ``net`` (pads by footprint), without ``skip`` and side parts."""
+    """Parts on ``net`` (pads by footprint), without ``skip``, side parts and
+    electrode footprints."""
     out: dict[str, list[Pad]] = {}
     for pad in pads_by_net(board).get(net, ()):
-        if pad.footprint_uid not in skip \
-                and not is_side_part(board, board.footprint(pad.footprint_uid), net):
+        fp = board.footprint(pad.footprint_uid)
+        # Other electrodes on the net (the keys of a matrix row) are not parts.
+        if pad.footprint_uid not in skip and not is_side_part(board, fp, net) \
+                and not is_electrode_part(fp):
             out.setdefault(pad.footprint_uid, []).append(pad)
     return {uid: tuple(sorted(p, key=lambda q: q.number)) for uid, p in sorted(out.items())}

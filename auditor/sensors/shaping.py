@@ -33,6 +33,7 @@ from auditor.sensors.cues import (
     tokens,
     trailing_index,
 )
+from auditor.sensors.matrix import matrix_kinds
 from auditor.sensors.model import Sensor, SensorKind, name_order
 from auditor.sensors.pieces import Piece
 from auditor.sensors.segments import grouped_by_layout
@@ -56,7 +57,8 @@ def shaped_sensors(board: Board, sel: SensorSelection,
     names = _unique_names(board, candidates)
     sensors = [_sensor(board, c, names[i]) for i, c in enumerate(candidates)]
     sensors, fixed = _kinds(board, sel, candidates, sensors)
-    sensors = grouped_by_layout(sensors, fixed)
+    sensors, keys = matrix_kinds(board, sensors)
+    sensors = grouped_by_layout(sensors, fixed | keys)
     sensors = _ordered_groups(sensors)
     return tuple(sorted(sensors, key=lambda s: name_order(s.name)))
 
