@@ -73,18 +73,17 @@ def _configured_selection(args: argparse.Namespace) -> SensorSelection:
 
 def run(args: argparse.Namespace) -> int:
     """List the sensors; exit 1 when there are none."""
-    from auditor.read.kicad_pro import read_project_netclasses
+    from auditor.read.kicad_pro import project_path_for
     from auditor.read.reader import read_board
 
     board = read_board(args.board)
     selection = selection_from_args(args, _configured_selection(args))
-    project = read_project_netclasses(args.board)
-    classes = tuple(board.netclasses) + project.classes
-    sensors, rejects = find_sensors(board, selection, classes)
+    sensors, rejects = find_sensors(board, selection)
     sensors = measure(board, sensors, selection)
     notes = [f"{w.code}: {w.message}" for w in board.warnings]
-    if not project.found:
-        notes.append(f"no project file {project.path}: net classes from the board only")
+    if not board.project_file:
+        notes.append(f"no project file {project_path_for(args.board)}: net classes from "
+                     "the board only")
     if args.json:
         document = sensors_document(args.board, sensors, rejects)
         document["notes"] = notes

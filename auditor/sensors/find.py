@@ -66,8 +66,8 @@ def find_sensors(board: Board, selection: SensorSelection | None = None,
     selection:
         What configuration says; defaults find electrodes automatically.
     netclasses:
-        Net classes to use; ``None`` takes the board's own (KiCad 5) plus the
-        project file beside it (KiCad 6+), when there is one.
+        Net classes to use; ``None`` takes the board's (its own and its
+        project file's, both loaded by ``read_board``).
 
     Returns
     -------
@@ -76,18 +76,9 @@ def find_sensors(board: Board, selection: SensorSelection | None = None,
         :func:`auditor.sensors.measure`), rejects sorted by net.
     """
     sel = selection or SensorSelection()
-    classes = tuple(netclasses) if netclasses is not None else all_netclasses(board)
+    classes = tuple(netclasses) if netclasses is not None else board.netclasses
     finder = _Finder(board, sel, classes)
     return finder.run()
-
-
-def all_netclasses(board: Board) -> tuple[NetClass, ...]:
-    """The board's inline net classes plus those of its project file, if present."""
-    from auditor.read.kicad_pro import read_project_netclasses
-
-    project = read_project_netclasses(board.path) if board.path else None
-    extra = project.classes if project is not None and project.found else ()
-    return tuple(board.netclasses) + tuple(extra)
 
 
 def classes_of(net: str, classes: Sequence[NetClass]) -> tuple[str, ...]:

@@ -135,22 +135,16 @@ def _zones_of(board: Board, net: str) -> tuple[Zone, ...]:
     return tuple(z for z in board.zones if z.net == net and not z.is_rule_area)
 
 
-_PADS_CACHE: dict[int, tuple[Board, dict[str, tuple[Pad, ...]]]] = {}
-
-
 def pads_by_net(board: Board) -> dict[str, tuple[Pad, ...]]:
-    """Pads grouped by net name (cached per board object)."""
-    hit = _PADS_CACHE.get(id(board))
-    if hit is not None and hit[0] is board:
-        return hit[1]
+    """Pads grouped by net name (built once per board)."""
+    return board.derived("sensors.pads_by_net", lambda: _group_pads(board))
+
+
+def _group_pads(board: Board) -> dict[str, tuple[Pad, ...]]:
     grouped: dict[str, list[Pad]] = {}
     for pad in board.pads:
         grouped.setdefault(pad.net, []).append(pad)
-    result = {net: tuple(pads) for net, pads in grouped.items()}
-    if len(_PADS_CACHE) > 8:
-        _PADS_CACHE.clear()
-    _PADS_CACHE[id(board)] = (board, result)
-    return result
+    return {net: tuple(pads) for net, pads in grouped.items()}
 
 
 def _touches(geom: BaseGeometry | None, probe: BaseGeometry) -> bool:
