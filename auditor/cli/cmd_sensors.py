@@ -17,6 +17,7 @@ from auditor.sensors.find import Rejected, find_sensors
 from auditor.sensors.measure import measure
 from auditor.sensors.model import Sensor
 from auditor.sensors.selection import SensorSelection, selection_from_mapping
+from auditor.sensors.suggest import config_lines
 
 CONFIG_HINT = (
     "name them in configuration, e.g. in pyproject.toml:\n"
@@ -87,13 +88,19 @@ def run(args: argparse.Namespace) -> int:
     if args.json:
         document = sensors_document(args.board, sensors, rejects)
         document["notes"] = notes
+        if not sensors:
+            document["suggested_config"] = list(config_lines(rejects))
         sys.stdout.write(json.dumps(document, sort_keys=True, indent=2) + "\n")
     else:
         sys.stdout.write(sensors_text(args.board, sensors, rejects))
         sys.stdout.write("".join(f"  note: {n}\n" for n in notes))
     if not sensors:
-        sys.stderr.write(f"padaudit: no sense electrodes found on {args.board}; "
-                         f"{CONFIG_HINT}\n")
+        lines = config_lines(rejects)
+        hint = CONFIG_HINT if not lines else (
+            "to take the candidates above, add to [tool.padaudit.sensors] in pyproject.toml "
+            "(or [sensors] in padaudit.toml):\n" + "".join(f"  {line}\n" for line in lines))
+        sys.stderr.write(f"padaudit: no sense electrodes found on {args.board}; {hint}"
+                         + ("" if hint.endswith("\n") else "\n"))
         return 1
     return 0
 

@@ -26,6 +26,7 @@ from auditor.model.board import Board
 from auditor.model.items import NetClass
 from auditor.sensors import robust
 from auditor.sensors.cues import is_ground_name, name_cue
+from auditor.sensors.matrix import key_footprints
 from auditor.sensors.model import Sensor
 from auditor.sensors.pieces import Piece, outer_layers, pads_by_net, pieces_on
 from auditor.sensors.reach import reach_of
@@ -104,6 +105,8 @@ class _Finder:
         self.accepted: list[Candidate] = []
         self.rejects: list[Rejected] = []
         self.small: list[tuple[Piece, str]] = []  # touch-named pads under the floor
+        self.keys = key_footprints(board, sel.cue_min_area_mm2) if sel.automatic else {}
+        self.key_nets = {n for pair in self.keys.values() for n in pair.split("+")}
 
     def run(self) -> tuple[tuple[Sensor, ...], tuple[Rejected, ...]]:
         by_net: dict[str, list[Piece]] = {}
@@ -138,7 +141,8 @@ class _Finder:
         pad_counts = {net: len(pads) for net, pads in pads_by_net(self.board).items()}
         nets = {n for n in self.board.nets if n and n not in self.grounds
                 and not matches(n, self.sel.exclude_nets)
-                and (pad_counts.get(n, 0) <= MAX_PADS_ON_SENSE_NET or self._net_config(n))}
+                and (pad_counts.get(n, 0) <= MAX_PADS_ON_SENSE_NET or self._net_config(n)
+                     or n in self.key_nets)}
         found: list[Piece] = []
         if not self.board.copper_layers:
             return found
@@ -246,6 +250,12 @@ class _Finder:
 
     def _judge_auto_piece(self, piece: Piece, cue: str, strong: bool) -> bool:
         sel = self.sel
+        uids = piece.footprint_uids
+        if uids and all(u in self.keys for u in uids) and piece.area_mm2 >= sel.cue_min_area_mm2:
+            refs = ", ".join(self.board.footprint(u).ref for u in uids)
+            self._accept(piece, f"{cue + '; ' if cue else ''}pad of key {refs} in a matrix of "
+                         "pad pairs on row and column nets")
+            return True
         reach = reach_of(self.board, piece.net, piece.footprint_uids, sel)
         area = piece.area_mm2
         if cue and area >= sel.cue_min_area_mm2 and (strong or reach.ok):
@@ -274,7 +284,9 @@ class _Finder:
         for uid in piece.owner_uids if piece else ():
             fp = self.board.footprint(uid)
             lib_cue = name_cue(fp.lib_id.split(":")[-1]) or name_cue(fp.value)
-            if lib_cue and lib_cue.strong or is_electrode_part(fp):
+            ref_cue = name_cue(fp.ref)  # TOUCH3, SLIDER1: a reference prefix names it too
+            if lib_cue and lib_cue.strong or is_electrode_part(fp) or (
+                    ref_cue is not None and ref_cue.strong):
                 return f"footprint {fp.ref} is {fp.lib_id or fp.value!r}", True
         return "", False
 

@@ -21,8 +21,12 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import replace
 
+from shapely.geometry.base import BaseGeometry
+from shapely.ops import unary_union
+
 from auditor.model.board import Board
-from auditor.sensors.cues import leaf, tokens
+from auditor.model.items import Footprint
+from auditor.sensors.cues import is_ground_name, leaf, tokens
 from auditor.sensors.model import Sensor, SensorKind
 from auditor.sensors.roles import is_electrode_part
 
@@ -115,3 +119,35 @@ def _names_switch(lib_id: str, ref: str) -> bool:
     prefix = "".join(ch for ch in ref if ch.isalpha()).upper()
     return prefix in ("SW", "K", "S") or any(t.startswith(w) for t in toks
                                               for w in SWITCH_WORDS)
+
+
+def key_footprints(board: Board, min_area_mm2: float) -> dict[str, str]:
+    """Footprints holding one key of a matrix (two close pads of at least
+    ``min_area_mm2`` on a row and a column net), as uid → the two nets joined.
+
+    Found from the pads, before any electrode is taken, so that keys whose
+    nets reach many keys (no single controller pin) are still found.
+    """
+    pairs: dict[str, tuple[str, str]] = {}
+    for fp in board.footprints:
+        pair = _pad_pair(fp, min_area_mm2)
+        if pair is not None:
+            pairs[fp.uid] = pair
+    if _two_sides(list(pairs.values())) is None:
+        return {}
+    return {uid: f"{a}+{b}" for uid, (a, b) in sorted(pairs.items())}
+
+
+def _pad_pair(fp: Footprint, min_area_mm2: float) -> tuple[str, str] | None:
+    by_net: dict[str, list[BaseGeometry]] = {}
+    for pad in fp.pads:
+        for shape in pad.copper:
+            if pad.net and not is_ground_name(pad.net):
+                by_net.setdefault(pad.net, []).append(shape.geometry)
+    if len(by_net) != 2:
+        return None
+    (net_a, geoms_a), (net_b, geoms_b) = sorted(by_net.items())
+    a, b = unary_union(geoms_a), unary_union(geoms_b)
+    if min(a.area, b.area) < min_area_mm2 or a.distance(b) > PAIR_GAP_MM:
+        return None
+    return net_a, net_b

@@ -22,6 +22,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from auditor.model.board import Board
+from auditor.sensors.crossed import crossed_kinds
 from auditor.sensors.cues import (
     PROXIMITY_WORDS,
     SLIDER_WORDS,
@@ -58,7 +59,8 @@ def shaped_sensors(board: Board, sel: SensorSelection,
     sensors = [_sensor(board, c, names[i]) for i, c in enumerate(candidates)]
     sensors, fixed = _kinds(board, sel, candidates, sensors)
     sensors, keys = matrix_kinds(board, sensors)
-    sensors = grouped_by_layout(sensors, fixed | keys)
+    sensors, stacked = crossed_kinds(sensors, fixed | keys, (board.copper_layers or ("",))[0])
+    sensors = grouped_by_layout(sensors, fixed | keys | stacked)
     sensors = _ordered_groups(sensors)
     return tuple(sorted(sensors, key=lambda s: name_order(s.name)))
 
