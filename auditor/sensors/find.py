@@ -25,6 +25,7 @@ from dataclasses import dataclass
 from auditor.model.board import Board
 from auditor.model.items import NetClass
 from auditor.sensors import robust
+from auditor.sensors.chain import resistor_chains
 from auditor.sensors.cues import is_ground_name, name_cue
 from auditor.sensors.matrix import key_footprints
 from auditor.sensors.model import Sensor
@@ -107,6 +108,8 @@ class _Finder:
         self.small: list[tuple[Piece, str]] = []  # touch-named pads under the floor
         self.keys = key_footprints(board, sel.cue_min_area_mm2) if sel.automatic else {}
         self.key_nets = {n for pair in self.keys.values() for n in pair.split("+")}
+        self.net_uids: tuple[str, ...] = ()
+        self.unreached: list[Piece] = []  # large copper whose net reaches no single pin
 
     def run(self) -> tuple[tuple[Sensor, ...], tuple[Rejected, ...]]:
         by_net: dict[str, list[Piece]] = {}
@@ -116,6 +119,7 @@ class _Finder:
             self._judge_net(net, sorted(by_net[net], key=lambda p: -p.area_mm2))
         self._reject_unfilled_zones()
         self._judge_small()
+        self._judge_chains()
         self._reject_netless()
         sensors = shaped_sensors(self.board, self.sel, self.accepted)
         return sensors, tuple(sorted(self.rejects, key=lambda r: (r.net, r.layer, r.x_mm)))
@@ -205,6 +209,16 @@ class _Finder:
                              f"mm² (needs {self.sel.cue_min_area_mm2:g} mm², or an alike "
                              "sibling pad)")
 
+    def _judge_chains(self) -> None:
+        """Unreached segments joined by a resistor chain: one resistive slider."""
+        for members in resistor_chains(self.board, self.unreached):
+            nets = {p.net for p in members}
+            self.rejects = [r for r in self.rejects if r.net not in nets]
+            for piece in members:
+                self._accept(piece, f"{piece.area_mm2:.0f} mm² of copper, one of "
+                             f"{len(members)} segments joined by a resistor chain "
+                             "(resistive slider)")
+
     def _reject_netless(self) -> None:
         for ref, layer, area, x, y in netless_touch_copper(self.board):
             self.rejects.append(Rejected(
@@ -236,6 +250,9 @@ class _Finder:
     def _judge_auto(self, net: str, pieces: list[Piece]) -> None:
         pieces = [p for p in pieces if not self._is_never_electrode(p)]
         cue, strong = self._cue(net, pieces[0] if pieces else None)
+        # Pieces of one net (a slider's split ends) are not parts to each other.
+        self.net_uids = tuple(sorted({u for p in pieces if p.area_mm2 >= self.sel.cue_min_area_mm2
+                                      or not self._is_part_pad(p) for u in p.footprint_uids}))
         took = False
         for piece in pieces:
             took |= self._judge_auto_piece(piece, cue, strong)
@@ -256,7 +273,7 @@ class _Finder:
             self._accept(piece, f"{cue + '; ' if cue else ''}pad of key {refs} in a matrix of "
                          "pad pairs on row and column nets")
             return True
-        reach = reach_of(self.board, piece.net, piece.footprint_uids, sel)
+        reach = reach_of(self.board, piece.net, self.net_uids, sel)
         area = piece.area_mm2
         if cue and area >= sel.cue_min_area_mm2 and (strong or reach.ok):
             self._accept(piece, cue if reach.ok else f"{cue} ({reach.why})")
@@ -268,6 +285,7 @@ class _Finder:
                          f"{reach.why.removeprefix('net ')}")
             return True
         elif area >= sel.min_area_mm2 and len(reach.parts) <= 3 and not cue:
+            self.unreached.append(piece)
             self._reject(piece, f"{area:.0f} mm² of copper, but {reach.why}")
         elif area >= 0.5 * sel.min_area_mm2 and reach.ok and not cue:
             self._reject(piece, f"{area:.1f} mm² is below the {sel.min_area_mm2:g} mm² "

@@ -76,8 +76,9 @@ def pieces_on(board: Board, layer: str, nets: Collection[str]) -> tuple[Piece, .
         merged = extra.get(net, [])
         union = robust.union([it.geometry for it in own] + merged)
         for poly in _polygons(union):
-            pieces.append(_piece(board, net, layer, poly, own + (_loose_items(board, layer) if merged else []),
-                                 bool(merged)))
+            netless = any(g.intersects(poly) for g in merged)
+            pieces.append(_piece(board, net, layer, poly,
+                                 own + (_loose_items(board, layer) if netless else []), netless))
     return tuple(pieces)
 
 

@@ -69,7 +69,7 @@ def _base_name(board: Board, cand: Candidate) -> str:
     piece = cand.piece
     if not is_auto_name(piece.net):
         return leaf(piece.net)
-    refs = sorted({board.footprint(u).ref for u in piece.footprint_uids})
+    refs = sorted({board.footprint(u).ref for u in piece.owner_uids})
     named_zone = next((z.name for z in piece.zones if z.name), "")
     return "+".join(refs) or named_zone or piece.net
 
@@ -103,7 +103,7 @@ def _sensor(board: Board, cand: Candidate, name: str) -> Sensor:
         # A loop's centroid lies in its hole, often on another electrode;
         # findings and markers placed there would point at the wrong copper.
         c = piece.geometry.representative_point()
-    refs = tuple(sorted({board.footprint(u).ref for u in piece.footprint_uids}))
+    refs = tuple(sorted({board.footprint(u).ref for u in piece.owner_uids}))
     front = piece.layer == board.copper_layers[0]
     return Sensor(name=name, kind="button", nets=(piece.net,), refs=refs, layer=piece.layer,
                   area_mm2=piece.area_mm2, x_mm=c.x, y_mm=c.y, reason=cand.reason,
