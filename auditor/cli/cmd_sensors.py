@@ -17,7 +17,7 @@ from auditor.sensors.find import Rejected, find_sensors
 from auditor.sensors.measure import measure
 from auditor.sensors.model import Sensor
 from auditor.sensors.selection import SensorSelection, selection_from_mapping
-from auditor.sensors.suggest import config_lines
+from auditor.sensors.suggest import config_lines, structure_notes
 
 CONFIG_HINT = (
     "name them in configuration, e.g. in pyproject.toml:\n"
@@ -81,7 +81,7 @@ def run(args: argparse.Namespace) -> int:
     selection = selection_from_args(args, _configured_selection(args))
     sensors, rejects = find_sensors(board, selection)
     sensors = measure(board, sensors, selection)
-    notes = [f"{w.code}: {w.message}" for w in board.warnings]
+    notes = [f"{w.code}: {w.message}" for w in board.warnings] + list(structure_notes(sensors))
     if not board.project_file:
         notes.append(f"no project file {project_path_for(args.board)}: net classes from "
                      "the board only")

@@ -24,12 +24,17 @@ from dataclasses import dataclass
 
 from auditor.model.board import Board
 from auditor.model.items import NetClass
-from auditor.sensors import robust
 from auditor.sensors.chain import resistor_chains
 from auditor.sensors.cues import is_ground_name, name_cue
 from auditor.sensors.matrix import key_footprints
 from auditor.sensors.model import Sensor
-from auditor.sensors.pieces import Piece, outer_layers, pads_by_net, pieces_on
+from auditor.sensors.pieces import (
+    Piece,
+    outer_layers,
+    pads_by_net,
+    pieces_on,
+    without_far_side_twins,
+)
 from auditor.sensors.reach import reach_of
 from auditor.sensors.roles import is_electrode_part, part_pads_only
 from auditor.sensors.selection import SensorSelection, matches
@@ -37,8 +42,6 @@ from auditor.sensors.shaping import Candidate, shaped_sensors
 from auditor.sensors.siblings import SIBLING_FLOOR_MM2, alike_siblings, netless_touch_copper
 from auditor.sensors.spatial import net_copper_area
 
-#: Share of a back piece that front copper of its net must cover to be its twin.
-TWIN_SHARE = 0.8
 #: Nets with more pads than this are supply or bus nets, never one electrode.
 MAX_PADS_ON_SENSE_NET = 12
 
@@ -152,7 +155,7 @@ class _Finder:
             return found
         for layer in outer_layers(self.board):
             found.extend(pieces_on(self.board, layer, nets))
-        return _without_through_hole_twins(found, self.board.copper_layers[0])
+        return without_far_side_twins(found, self.board.copper_layers[0])
 
     def _net_config(self, net: str) -> str:
         sel = self.sel
@@ -316,22 +319,3 @@ class _Finder:
         refs = tuple(sorted({self.board.footprint(u).ref for u in piece.footprint_uids}))
         self.rejects.append(Rejected(piece.net, refs, piece.layer, round(piece.area_mm2, 6),
                                      round(c.x, 6), round(c.y, 6), why))
-
-
-def _without_through_hole_twins(pieces: list[Piece], front_layer: str) -> list[Piece]:
-    """Drop a back piece that is only the far side of the front copper: its pads
-    are all pads of a front piece of the net (through-hole pads), or it lies
-    under a front piece of the net (one pad drawn on both faces)."""
-    front = [p for p in pieces if p.layer == front_layer]
-    keys: dict[str, set[tuple[str, str]]] = {}
-    for p in front:
-        keys.setdefault(p.net, set()).update((q.footprint_uid, q.number) for q in p.pads)
-
-    def twin(p: Piece) -> bool:
-        pads = {(q.footprint_uid, q.number) for q in p.pads}
-        if pads and set(p.sources) <= {"pad", "custom pad"} and pads <= keys.get(p.net, set()):
-            return True
-        return any(f.net == p.net and float(robust.intersection(f.geometry, p.geometry).area)
-                   >= TWIN_SHARE * p.area_mm2 for f in front)
-
-    return [p for p in pieces if p.layer == front_layer or not twin(p)]

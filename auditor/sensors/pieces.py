@@ -150,3 +150,26 @@ def _group_pads(board: Board) -> dict[str, tuple[Pad, ...]]:
 
 def _touches(geom: BaseGeometry | None, probe: BaseGeometry) -> bool:
     return geom is not None and not geom.is_empty and geom.intersects(probe)
+
+
+#: Share of a back piece that front copper of its net must cover to be its twin.
+TWIN_SHARE = 0.8
+
+
+def without_far_side_twins(pieces: list[Piece], front_layer: str) -> list[Piece]:
+    """Drop a back piece that is only the far side of the front copper: its pads
+    are all pads of a front piece of the net (through-hole pads), or it lies
+    under a front piece of the net (one pad drawn on both faces)."""
+    front = [p for p in pieces if p.layer == front_layer]
+    keys: dict[str, set[tuple[str, str]]] = {}
+    for p in front:
+        keys.setdefault(p.net, set()).update((q.footprint_uid, q.number) for q in p.pads)
+
+    def twin(p: Piece) -> bool:
+        pads = {(q.footprint_uid, q.number) for q in p.pads}
+        if pads and set(p.sources) <= {"pad", "custom pad"} and pads <= keys.get(p.net, set()):
+            return True
+        return any(f.net == p.net and float(robust.intersection(f.geometry, p.geometry).area)
+                   >= TWIN_SHARE * p.area_mm2 for f in front)
+
+    return [p for p in pieces if p.layer == front_layer or not twin(p)]

@@ -103,3 +103,9 @@ def test_committed_boards_are_current(tmp_path: Path) -> None:
         committed = FIXTURES / path.name
         assert committed.read_bytes() == path.read_bytes(), f"{path.name} is stale: run " \
             "python fixtures/make_structure_boards.py"
+
+
+def test_key_switches_get_one_note(found: dict[str, tuple[int, dict[str, Any], str]]) -> None:
+    notes = found["keyswitch-matrix"][1]["notes"]
+    assert sum("key switch" in n for n in notes) == 1
+    assert not any("key switch" in n for n in found["mutual-xy"][1]["notes"])
