@@ -20,13 +20,13 @@ structural candidates that miss by less than half, come back as rejects.
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass
 
 from auditor.model.board import Board
 from auditor.model.items import NetClass
-from auditor.sensors.chain import resistor_chains
 from auditor.sensors.cues import is_ground_name, name_cue
+from auditor.sensors.late import LateJudgements
 from auditor.sensors.matrix import key_footprints
+from auditor.sensors.model import Rejected as Rejected  # re-exported: callers import it here
 from auditor.sensors.model import Sensor
 from auditor.sensors.pieces import (
     Piece,
@@ -39,24 +39,13 @@ from auditor.sensors.reach import reach_of
 from auditor.sensors.roles import is_electrode_part, part_pads_only
 from auditor.sensors.selection import SensorSelection, matches
 from auditor.sensors.shaping import Candidate, shaped_sensors
-from auditor.sensors.siblings import SIBLING_FLOOR_MM2, alike_siblings, netless_touch_copper
+from auditor.sensors.siblings import SIBLING_FLOOR_MM2
 from auditor.sensors.spatial import net_copper_area
 
 #: Nets with more pads than this are supply or bus nets, never one electrode.
 MAX_PADS_ON_SENSE_NET = 12
 
 
-@dataclass(frozen=True)
-class Rejected:
-    """Copper that looked like an electrode but was not taken, and why."""
-
-    net: str
-    refs: tuple[str, ...]
-    layer: str
-    area_mm2: float
-    x_mm: float
-    y_mm: float
-    why: str
 
 
 def find_sensors(board: Board, selection: SensorSelection | None = None,
@@ -101,7 +90,7 @@ def ground_net(board: Board, selection: SensorSelection) -> str:
     return max(sorted(names), key=lambda n: net_copper_area(board, n))
 
 
-class _Finder:
+class _Finder(LateJudgements):
     def __init__(self, board: Board, sel: SensorSelection, classes: tuple[NetClass, ...]):
         self.board, self.sel, self.classes = board, sel, classes
         self.grounds = {n for n in board.nets if is_ground_name(n)
@@ -120,29 +109,9 @@ class _Finder:
             by_net.setdefault(piece.net, []).append(piece)
         for net in sorted(by_net):
             self._judge_net(net, sorted(by_net[net], key=lambda p: -p.area_mm2))
-        self._reject_unfilled_zones()
-        self._judge_small()
-        self._judge_chains()
-        self._reject_netless()
+        self.judge_late()
         sensors = shaped_sensors(self.board, self.sel, self.accepted)
         return sensors, tuple(sorted(self.rejects, key=lambda r: (r.net, r.layer, r.x_mm)))
-
-    def _reject_unfilled_zones(self) -> None:
-        """A zone that may be an electrode but has no fill in the file cannot be measured."""
-        outer = set(outer_layers(self.board))
-        for zone in self.board.zones:
-            if zone.is_rule_area or zone.fills or zone.net in self.grounds \
-                    or not outer & set(zone.layers):
-                continue
-            named = (self.sel.zones and zone.name and matches(zone.name, self.sel.zones)) \
-                or self._net_config(zone.net) or name_cue(zone.net) or name_cue(zone.name)
-            if named:
-                c = zone.outline.centroid
-                self.rejects.append(Rejected(
-                    zone.net, (), zone.layers[0], round(float(zone.outline.area), 6),
-                    round(c.x, 6), round(c.y, 6),
-                    f"zone {zone.name or zone.net!r} has no fill in the file, so its copper is "
-                    "unknown (refill the zones in KiCad and save)"))
 
     def _pieces(self) -> list[Piece]:
         pad_counts = {net: len(pads) for net, pads in pads_by_net(self.board).items()}
@@ -198,38 +167,6 @@ class _Finder:
         elif self.sel.automatic and not taken:
             self._judge_auto(net, rest)
 
-    def _judge_small(self) -> None:
-        """Touch-named pads under the floor, taken when alike siblings back them."""
-        cues = dict((id(p), cue) for p, cue in self.small)
-        taken = alike_siblings([p for p, _ in self.small])
-        for piece, family in taken:
-            self._accept(piece, f"{cues[id(piece)]}; {piece.area_mm2:.1f} mm², one of "
-                         f"{family} alike touch-named pads")
-        kept = {id(p) for p, _ in taken}
-        for piece, cue in self.small:
-            if id(piece) not in kept:
-                self._reject(piece, f"{cue}, but its largest copper is {piece.area_mm2:.1f} "
-                             f"mm² (needs {self.sel.cue_min_area_mm2:g} mm², or an alike "
-                             "sibling pad)")
-
-    def _judge_chains(self) -> None:
-        """Unreached segments joined by a resistor chain: one resistive slider."""
-        for members in resistor_chains(self.board, self.unreached):
-            nets = {p.net for p in members}
-            self.rejects = [r for r in self.rejects if r.net not in nets]
-            for piece in members:
-                self._accept(piece, f"{piece.area_mm2:.0f} mm² of copper, one of "
-                             f"{len(members)} segments joined by a resistor chain "
-                             "(resistive slider)")
-
-    def _reject_netless(self) -> None:
-        for ref, layer, area, x, y in netless_touch_copper(self.board):
-            self.rejects.append(Rejected(
-                "", (ref,), layer, round(area, 6), round(x, 6), round(y, 6),
-                f"touch footprint {ref} has {area:.0f} mm² of copper without a net (drawn "
-                "before the schematic?): an electrode without a net cannot be followed "
-                "to a controller; give it a net"))
-
     def _is_never_electrode(self, piece: Piece) -> bool:
         """Pads only, all of controllers, connectors or modules."""
         return set(piece.sources) <= {"pad", "custom pad"} and part_pads_only(
@@ -258,7 +195,9 @@ class _Finder:
                                       or not self._is_part_pad(p) for u in p.footprint_uids}))
         took = False
         for piece in pieces:
-            took |= self._judge_auto_piece(piece, cue, strong)
+            # A piece's own footprint words name it better than the net's first piece's.
+            own = self._cue(net, piece) if piece is not pieces[0] else (cue, strong)
+            took |= self._judge_auto_piece(piece, *(own if own[0] else (cue, strong)))
         if cue and not took and pieces:
             top = pieces[0]
             if top.area_mm2 < self.sel.cue_min_area_mm2 and not self._is_part_pad(top) \

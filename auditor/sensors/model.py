@@ -150,3 +150,15 @@ def name_order(name: str) -> tuple[tuple[int, int | str], ...]:
 
     return tuple((1, int(part)) if part.isdigit() else (0, part)
                  for part in re.split(r"(\d+)", name) if part)
+
+@dataclass(frozen=True)
+class Rejected:
+    """Copper that looked like an electrode but was not taken, and why."""
+
+    net: str
+    refs: tuple[str, ...]
+    layer: str
+    area_mm2: float
+    x_mm: float
+    y_mm: float
+    why: str
