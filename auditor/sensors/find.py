@@ -168,8 +168,11 @@ class _Finder(LateJudgements):
             self._judge_auto(net, rest)
 
     def _is_never_electrode(self, piece: Piece) -> bool:
-        """Pads only, all of controllers, connectors or modules."""
-        return set(piece.sources) <= {"pad", "custom pad"} and part_pads_only(
+        """Pads only, all of controllers, connectors or modules, and smaller than
+        an electrode found by structure (a many-pad footprint of large pads with
+        no words is an electrode footprint, not a controller)."""
+        return set(piece.sources) <= {"pad", "custom pad"} \
+            and piece.area_mm2 < self.sel.min_area_mm2 and part_pads_only(
             self.board, piece.pads, self.sel.controller_min_pads)
 
     def _judge_configured(self, net: str, pieces: list[Piece], reason: str) -> None:

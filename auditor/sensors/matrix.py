@@ -51,9 +51,8 @@ def matrix_kinds(board: Board, sensors: Sequence[Sensor]) -> tuple[list[Sensor],
         for i in (a, b):
             kind: SensorKind = "keyswitch" if switch else (
                 "mutual-rx" if sides[sensors[i].nets[0]] == rx_side else "mutual-tx")
-            why = ("one pad of a key switch's sense/strobe pair in a key matrix (a "
-                   "mechanical key changes it, not a finger)") if switch else (
-                "one pad of an interleaved transmit/receive pair in a key matrix")
+            why = "key switch pad (a mechanical key moves it, not a finger)" if switch \
+                else f"{'receive' if kind == 'mutual-rx' else 'transmit'} pad of the key"
             out[i] = replace(sensors[i], kind=kind, group=fp.ref,
                              reason=f"{sensors[i].reason}; {why}")
     return out, {out[i].name for a, b, _ in pairs for i in (a, b)}
