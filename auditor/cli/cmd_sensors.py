@@ -133,6 +133,7 @@ def sensor_record(sensor: Sensor) -> dict[str, Any]:
             "length_mm": p.length_mm, "vias": p.vias, "layers": list(p.layers),
             "widths_mm": sorted({r.width_mm for r in p.runs}),
             "controller": f"{p.controller_ref}.{p.controller_pin}" if p.controller_ref else "",
+            "controller_ref": p.controller_ref,
             "series_ref": p.series_ref, "series_to_pin_mm": p.series_to_pin_mm,
             "complete": p.complete, "off_board": p.off_board, "nets": list(p.nets),
             "neighbours": [{"net": n.net, "parallel_mm": n.parallel_mm,

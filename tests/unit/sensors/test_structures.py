@@ -63,6 +63,7 @@ def test_path_ends(name: str, found: dict[str, tuple[int, dict[str, Any], str]])
     by_name = {s["name"]: s for s in found[name][1]["sensors"]}
     for sensor, want in MANIFEST["cases"][name]["paths"].items():
         path = by_name[sensor]["path"]
+        assert path["controller_ref"] == want["controller_ref"]
         assert path["controller"].split(".")[0] == want["controller_ref"]
         assert path["off_board"] is want["off_board"]
         if "complete" in want:
