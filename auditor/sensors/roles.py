@@ -23,6 +23,7 @@ CONNECTOR_WORDS = ("connector", "conn", "header", "pinheader", "pinsocket", "soc
 MODULE_WORDS = ("module", "castellated")
 PROTECTION_WORDS = ("esd", "tvs", "protection", "suppressor")
 CONNECTOR_PREFIXES = ("J", "P", "CN", "CON", "X")
+DIODE_PREFIXES = ("D", "TVS", "ESD", "LED")
 #: Words that name a touch electrode footprint (besides the strong cue words).
 ELECTRODE_WORDS = STRONG_WORDS + ("finger", "electrode", "touchpad")
 
@@ -57,10 +58,14 @@ def is_connector(fp: Footprint) -> bool:
         return False
     if _says(fp, CONNECTOR_WORDS):
         return True
-    prefix = re.match(r"[A-Za-z]+", fp.ref)
     numbers = {p.number for p in fp.pads if p.kind != "np_thru_hole"}
-    return prefix is not None and prefix.group(0).upper() in CONNECTOR_PREFIXES \
-        and len(numbers) >= 2
+    return _prefix(fp.ref) in CONNECTOR_PREFIXES and len(numbers) >= 2
+
+
+def _prefix(ref: str) -> str:
+    """The letters a reference starts with, upper case (``J12`` → ``J``)."""
+    match = re.match(r"[A-Za-z]+", ref)
+    return match.group(0).upper() if match else ""
 
 
 def is_module(fp: Footprint) -> bool:
@@ -80,8 +85,8 @@ def is_supply_name(net: str) -> bool:
 def is_side_part(board: Board, fp: Footprint, net: str) -> bool:
     """A part beside ``net``: protection diode, or a two-terminal part whose
     other pad is on ground, a supply or nothing."""
-    if _says(fp, PROTECTION_WORDS):
-        return True
+    if _says(fp, PROTECTION_WORDS) or _prefix(fp.ref) in DIODE_PREFIXES:
+        return True  # a diode (ESD/TVS array, LED) is never the controller or series part
     copper = [p for p in fp.pads if p.kind != "np_thru_hole"]
     if len({p.number for p in copper}) != 2:
         return False
