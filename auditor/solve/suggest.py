@@ -17,6 +17,7 @@ about 1 %).
 from __future__ import annotations
 
 from collections.abc import Callable, Mapping
+from dataclasses import dataclass
 
 from auditor.config import Config
 from auditor.model.board import Board
@@ -140,40 +141,57 @@ def _cover_for(have_mm: float, electrode: Electrode,
     return out
 
 
+@dataclass(frozen=True)
+class _Goal:
+    """A limit on a field result: the metric, the value to reach (margin
+    included) and how far the electrode is from it now (negative)."""
+
+    metric: Metric
+    target: float
+    start_margin: float
+
+    def margin(self, _value: float, predicted: Predicted) -> float:
+        return self.metric(predicted) - self.target
+
+
 def _signal_low(rule_id: str, measured: Mapping[str, float], electrode: Electrode,
                 predict: Predict) -> tuple[Suggestion, ...]:
     """Pad diameter that clears, and the single best other change."""
     metric, key = METRICS[rule_id]
     target = measured[key] * (1 + MARGIN)
-    before = predict(electrode.setup)
-
-    def search(lever: Lever, probes: tuple[float, ...] = ()) -> Suggestion | None:
-        found = smallest_clearing(lambda v: predict(lever.apply(v)),
-                                  lambda _v, p: metric(p) - target, lever.start,
-                                  metric(before) - target, lever.bound, lever.step, probes)
-        if found is None:
-            return None
-        return _one(lever, found.value, electrode, predict, found.clears)
-
-    out = []
+    goal = _Goal(metric, target, metric(predict(electrode.setup)) - target)
     pad = pad_lever(electrode)
     finger = electrode.setup.finger_diameter_mm
-    if pad is not None:
-        found = search(pad, (finger,) if finger and pad.start < finger < pad.bound else ())
-        out.append(found) if found is not None else None
+    # ΔC/Cp against pad size peaks near the finger's size (physics-model.md)
+    probes = (finger,) if pad and finger and pad.start < finger < pad.bound else ()
+    made = [_searched(pad, probes, goal, electrode, predict) if pad else None,
+            _best_other(goal, electrode, predict)]
+    return tuple(s for s in made if s is not None)
+
+
+def _searched(lever: Lever, probes: tuple[float, ...], goal: _Goal, electrode: Electrode,
+              predict: Predict) -> Suggestion | None:
+    """The smallest change of ``lever`` that reaches ``goal`` (or its best try)."""
+    found = smallest_clearing(lambda v: predict(lever.apply(v)), goal.margin, lever.start,
+                              goal.start_margin, lever.bound, lever.step, probes)
+    if found is None:
+        return None
+    return _one(lever, found.value, electrode, predict, found.clears)
+
+
+def _best_other(goal: _Goal, electrode: Electrode, predict: Predict) -> Suggestion | None:
+    """Of cover, copper under the pad and gap: the lever that gains most at
+    the end of its range, searched for its smallest clearing change."""
     levers = [lever for lever in (thickness_lever(electrode), permittivity_lever(electrode),
                                   hatch_lever(electrode), clear_lever(electrode),
                                   gap_lever(electrode)) if lever is not None]
-    if levers:
-        # rank by the gain at the end of each range; search only the winner
-        best = max(levers, key=lambda lv: (metric(predict(lv.apply(lv.bound))), lv.parameter))
-        if best.step == 0:
-            out.append(_one(best, best.bound, electrode, predict,
-                            metric(predict(best.apply(best.bound))) >= target))
-        else:
-            found = search(best)
-            out.append(found) if found is not None else None
-    return tuple(out)
+    if not levers:
+        return None
+    best = max(levers, key=lambda lv: (goal.metric(predict(lv.apply(lv.bound))), lv.parameter))
+    if best.step == 0:
+        reached = goal.margin(best.bound, predict(best.apply(best.bound))) >= 0
+        return _one(best, best.bound, electrode, predict, reached)
+    return _searched(best, (), goal, electrode, predict)
 
 
 def _gap_tight(measured: Mapping[str, float], electrode: Electrode,
