@@ -25,32 +25,40 @@ from fixtures.make_rule_boards import BASE, HERMETIC_CONFIG, Design, board_text
 
 pytestmark = pytest.mark.slow
 
-#: Limits the 5 mm pad and the 10 mm pad miss on this board (values chosen
-#: for the test from an audit of it, not published figures).
+#: Limits the 5 mm pad misses on this board (values chosen for the test from
+#: an audit of it, not published figures); the Cp limit is set 0.5 pF under
+#: the 10 mm pad's Cp total, whatever that holds besides the field model.
 LIMITS = """
 [thresholds]
 min_delta_c_pf = 0.3
 min_delta_ratio = 0.07
-controller_max_cp_pf = 5.0
 """
 E1, E2 = BASE.buttons
 BAD = replace(BASE, ground_gap_mm=0.25, back_hatch=None,
               buttons=(replace(E1, diameter_mm=5.0), E2))
 
 
-def audited(folder: Path, design: Design, overlay_mm: float = 2.0,
+def audited(folder: Path, design: Design, limits: str, overlay_mm: float = 2.0,
             suggest: bool = False) -> Report:
     folder.mkdir(parents=True, exist_ok=True)
     config = HERMETIC_CONFIG.replace("thickness_mm = 2.0", f"thickness_mm = {overlay_mm}")
-    (folder / "padaudit.toml").write_text(config + LIMITS, encoding="utf-8")
+    (folder / "padaudit.toml").write_text(config + limits, encoding="utf-8")
     path = folder / "board.kicad_pcb"
     path.write_text(board_text(design, "suggest"), encoding="utf-8")
     return run_audit(path, AuditOptions(suggest=suggest))
 
 
 @pytest.fixture(scope="module")
-def bad(tmp_path_factory: pytest.TempPathFactory) -> Report:
-    return audited(tmp_path_factory.mktemp("bad"), BAD, suggest=True)
+def limits(tmp_path_factory: pytest.TempPathFactory) -> str:
+    measured = audited(tmp_path_factory.mktemp("measure"), BAD, LIMITS)
+    cp = next(r.metrics for r in measured.sensors if r.sensor.name == "TOUCH2")
+    assert cp is not None
+    return LIMITS + f"controller_max_cp_pf = {cp.cp_total_pf - 0.5:.2f}\n"
+
+
+@pytest.fixture(scope="module")
+def bad(tmp_path_factory: pytest.TempPathFactory, limits: str) -> Report:
+    return audited(tmp_path_factory.mktemp("bad"), BAD, limits, suggest=True)
 
 
 def suggestions(report: Report, rule_id: str, sensor: str) -> tuple[Suggestion, ...]:
@@ -100,13 +108,13 @@ CASES = [("electrode-too-small", "TOUCH1"), ("delta-c-low", "TOUCH1"), ("ratio-l
 
 
 @pytest.mark.parametrize("rule_id, sensor", CASES)
-def test_each_suggestion_clears_its_finding(bad: Report, tmp_path: Path, rule_id: str,
-                                            sensor: str) -> None:
+def test_each_suggestion_clears_its_finding(bad: Report, limits: str, tmp_path: Path,
+                                            rule_id: str, sensor: str) -> None:
     made = [s for s in suggestions(bad, rule_id, sensor) if s.clears]
     assert made, f"no clearing suggestion for {rule_id} on {sensor}"
     for number, s in enumerate(made):
         design, overlay_mm = applied(BAD, sensor, s)
-        again = audited(tmp_path / f"{number}", design, overlay_mm)
+        again = audited(tmp_path / f"{number}", design, limits, overlay_mm)
         assert not has(again, rule_id, sensor), f"{s.change} left {rule_id} on {sensor}"
 
 
