@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import argparse
 import contextlib
+import io
 import os
 import sys
 from collections.abc import Iterator
@@ -17,6 +18,7 @@ from pathlib import Path
 
 from auditor.cli.audit_runner import AuditFn, auditor_for, shown_as
 from auditor.cli.colour import COLOUR_CHOICES, use_colour
+from auditor.cli.outputs import require_value, write_output, written_to_stdout
 from auditor.errors import UsageError
 from auditor.report.diff import compare_reports
 from auditor.report.diff_render import DIFF_FORMATS, render_diff
@@ -79,16 +81,19 @@ def _audited(audit: AuditFn, spec: str) -> Report:
 
 def run(args: argparse.Namespace) -> int:
     """Run ``padaudit diff``."""
+    for name, side in (("OLD", args.old), ("NEW", args.new)):
+        require_value(name, side)
+    require_value("--output", args.output)
     audit = auditor_for(args)
     diff = compare_reports(_audited(audit, args.old), _audited(audit, args.new),
                            args.max_ratio_loss)
     if args.output:
-        try:
-            with open(args.output, "w", encoding="utf-8") as stream:
-                render_diff(diff, args.format, stream)
-        except OSError as exc:
-            raise UsageError(f"{args.output}: cannot write: {exc.strerror or exc}") from None
+        buffer = io.StringIO()
+        render_diff(diff, args.format, buffer)
+        boards = [side.partition(":")[2] or side for side in (args.old, args.new)]
+        write_output("--output", args.output, buffer.getvalue(),
+                     [args.old, args.new, *boards])
     else:
         colour = use_colour(args.color, sys.stdout, os.environ) and args.format == "text"
-        render_diff(diff, args.format, sys.stdout, colour)
+        written_to_stdout(lambda: render_diff(diff, args.format, sys.stdout, colour))
     return diff.exit_code

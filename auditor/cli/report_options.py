@@ -17,7 +17,12 @@ from typing import TextIO
 
 from auditor.cli.audit_runner import AuditFn, auditor_for, shown_as
 from auditor.cli.colour import COLOUR_CHOICES, use_colour
-from auditor.errors import UsageError
+from auditor.cli.outputs import (
+    require_value,
+    stdout_may_close,
+    write_output,
+    written_to_stdout,
+)
 from auditor.report.cautions import with_cautions
 from auditor.report.model import Report
 from auditor.report.render import FORMATS, render
@@ -53,23 +58,25 @@ def add_report_options(parser: argparse.ArgumentParser) -> None:
                            "loses more than the profile's max_ratio_loss of its ratio")
 
 
-def _write_file(path: str, text: str) -> None:
-    try:
-        Path(path).write_text(text, encoding="utf-8")
-    except OSError as exc:
-        raise UsageError(f"{path}: cannot write: {exc.strerror or exc}") from None
+def _inputs(report: Report, args: argparse.Namespace) -> tuple[str, ...]:
+    """The boards this run read: no output may land on one of them."""
+    return tuple(p for p in (getattr(args, "board", None), report.info.board_path) if p)
+
+
+def _check_values(args: argparse.Namespace) -> None:
+    for option in ("output", "svg", "baseline", "write_baseline", "against"):
+        require_value("--" + option.replace("_", "-"), getattr(args, option, None))
 
 
 def _gated(report: Report, args: argparse.Namespace) -> Report:
     # Imported here, as the picture and the diff below: most runs use none
     # of them, and every import costs start-up time.
-    from auditor.decide.baseline import apply_baseline, load_baseline, write_baseline
+    from auditor.decide.baseline import Baseline, apply_baseline, dumps, load_baseline
 
     if getattr(args, "write_baseline", None):
-        try:
-            written = write_baseline(args.write_baseline, report)
-        except OSError as exc:
-            raise UsageError(f"{args.write_baseline}: cannot write: {exc.strerror}") from None
+        written = Baseline.of(report.findings)
+        write_output("--write-baseline", args.write_baseline, dumps(written),
+                     _inputs(report, args))
         report = apply_baseline(report, written)
     elif getattr(args, "baseline", None):
         report = apply_baseline(report, load_baseline(args.baseline))
@@ -97,8 +104,9 @@ def _against(report: Report, args: argparse.Namespace, audit: AuditFn | None,
     with board_at(board, args.against) as old_copy:
         old = shown_as(audit(str(old_copy)), f"{args.against}:{locate(board).path}")
     diff = compare_reports(old, report)
-    stdout.write("\n")
-    render_diff(diff, "text", stdout, colour)
+    with stdout_may_close():
+        stdout.write("\n")
+        render_diff(diff, "text", stdout, colour)
     return diff.exit_code
 
 
@@ -120,28 +128,27 @@ def emit(report: Report, args: argparse.Namespace, *, audit: AuditFn | None = No
     environment = os.environ if env is None else env
     fmt, order = getattr(args, "format", "text"), getattr(args, "order", "weakest")
     colour = use_colour(getattr(args, "color", "auto"), out, environment)
+    _check_values(args)
     if getattr(args, "against", None):
         from auditor.gitrev import check_board_at
 
         check_board_at(report.info.board_path, args.against)
     report = _gated(with_cautions(report), args)
     if getattr(args, "svg", None):
-        from auditor.report.svg import write_svg
+        from auditor.report.svg import to_svg
 
-        try:
-            write_svg(_with_board(report), args.svg)
-        except OSError as exc:
-            raise UsageError(f"{args.svg}: cannot write: {exc.strerror}") from None
+        write_output("--svg", args.svg, to_svg(_with_board(report)), _inputs(report, args))
     if getattr(args, "output", None):
         import io
 
         buffer = io.StringIO()
         render(report, fmt, buffer, False, order=order)
-        _write_file(args.output, buffer.getvalue())
+        write_output("--output", args.output, buffer.getvalue(), _inputs(report, args))
         if not getattr(args, "quiet", False):
-            out.write(summary_line(report, args.output) + "\n")
+            written_to_stdout(lambda: out.write(summary_line(report, args.output) + "\n"))
     else:
-        render(report, fmt, out, colour and fmt == "text", order=order)
+        written_to_stdout(lambda: render(report, fmt, out, colour and fmt == "text",
+                                         order=order))
     code = report.exit_code
     if getattr(args, "against", None):
         code = max(code, _against(report, args, audit, out if fmt == "text" else sys.stderr,
