@@ -28,6 +28,7 @@ from auditor.read.context import (
     text_of,
 )
 from auditor.read.footprints import read_footprint
+from auditor.read.limits import read_limited
 from auditor.read.outline import build_outline
 from auditor.read.parts import BoardParts, EdgePiece
 from auditor.read.sexpr import Locator, Node, decode, gc_paused, iter_top, parse
@@ -52,7 +53,7 @@ def read_board(path: str | Path) -> Board:
     if file.is_dir():
         raise BoardFileError(path, "is a directory, not a board file" + _boards_inside(file))
     try:
-        data = file.read_bytes()
+        data = read_limited(file)
     except FileNotFoundError:
         raise BoardFileError(path, "no such file") from None
     except OSError as exc:
