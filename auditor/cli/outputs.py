@@ -56,6 +56,11 @@ def write_output(option: str, target: str, text: str, inputs: Iterable[str]) -> 
     try:
         if path.is_dir():
             raise IsADirectoryError(21, "is a directory")
+        if path.exists() and not path.is_file():
+            # /dev/null, a FIFO, /dev/stdout: written into, never replaced
+            with open(path, "w", encoding="utf-8", newline="") as stream:
+                stream.write(text)
+            return
         _replace(path, text)
     except OSError as exc:
         raise UsageError(f"{target}: cannot write: {exc.strerror or exc}") from None
