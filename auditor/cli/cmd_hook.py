@@ -15,18 +15,25 @@ import os
 import shlex
 import stat
 import sys
-from pathlib import Path
+from collections.abc import Callable
+from pathlib import Path, PurePosixPath
 
 from auditor.cli.audit_runner import auditor_for, shown_as
 from auditor.cli.colour import use_colour
-from auditor.errors import UsageError
+from auditor.cli.outputs import replace_text
+from auditor.errors import PadauditError, UsageError
 from auditor.gitrev import board_at, repo_root, run_git, staged_boards
 from auditor.report.cautions import with_cautions
 from auditor.report.model import Report
 from auditor.report.render import render
 
+#: Exit code of a board that could not be audited (as main's bad input).
+EXIT_BAD_INPUT = 2
+
 #: Marks a hook file as ours, so ``install`` may replace it without --force.
 HOOK_MARKER = "# padaudit-managed-hook"
+#: The name a replaced foreign hook is kept under, beside the new one.
+BACKUP_NAME = "pre-commit.padaudit-backup"
 
 
 def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
@@ -76,14 +83,28 @@ def hooks_dir(cwd: Path) -> Path:
     return path if path.is_absolute() else cwd / path
 
 
+def _foreign(target: Path) -> bool:
+    """Whether a hook exists that padaudit did not write (a symlink always
+    counts as foreign: its target may be a tracked script)."""
+    if target.is_symlink():
+        return True
+    return target.exists() and HOOK_MARKER not in target.read_text(errors="replace")
+
+
 def install(cwd: Path, force: bool, fail_on: str | None = None) -> Path:
-    """Write the hook; refuse to replace a foreign one unless ``force``."""
+    """Write the hook; refuse to replace a foreign one unless ``force``, and
+    then keep it as ``pre-commit.padaudit-backup`` (a symlink is moved
+    itself; what it points at is never written)."""
     target = hooks_dir(cwd) / "pre-commit"
-    if target.exists() and not force and HOOK_MARKER not in target.read_text(errors="replace"):
+    foreign = _foreign(target)
+    if foreign and not force:
         raise UsageError(f"{target}: a pre-commit hook not written by padaudit exists; "
-                         "use --force to replace it")
+                         "use --force to replace it (it is kept as "
+                         f"{BACKUP_NAME})")
     target.parent.mkdir(parents=True, exist_ok=True)
-    target.write_text(hook_script(sys.executable, fail_on), encoding="utf-8")
+    if foreign:
+        os.replace(target, target.with_name(BACKUP_NAME))
+    replace_text(target, hook_script(sys.executable, fail_on))
     target.chmod(target.stat().st_mode | stat.S_IXUSR | stat.S_IXGRP | stat.S_IXOTH)
     return target
 
@@ -94,12 +115,22 @@ def _audit_staged(args: argparse.Namespace, cwd: Path) -> list[tuple[str, int]]:
     if not boards:
         return []
     audit = auditor_for(args)
-    results = []
-    for path in boards:
+
+    def staged(path: PurePosixPath) -> int:
         with board_at(root / Path(*path.parts), "") as copy:
-            report = shown_as(audit(str(copy)), f"{path} (staged)")
-        results.append((str(path), _show(report)))
-    return results
+            return _show(shown_as(audit(str(copy)), f"{path} (staged)"))
+
+    return [_guarded(str(path), lambda p=path: staged(p)) for path in boards]
+
+
+def _guarded(name: str, check: Callable[[], int]) -> tuple[str, int]:
+    """``(name, exit code)`` of one board; bad input is reported in one line
+    and the other boards are still audited."""
+    try:
+        return name, check()
+    except PadauditError as exc:
+        sys.stderr.write(f"padaudit: {exc}\n")
+        return name, EXIT_BAD_INPUT
 
 
 def _show(report: Report) -> int:
@@ -117,7 +148,7 @@ def run(args: argparse.Namespace) -> int:
         return 0
     if args.files:
         audit = auditor_for(args)
-        results = [(f, _show(audit(f))) for f in args.files]
+        results = [_guarded(f, lambda f=f: _show(audit(f))) for f in args.files]
     else:
         results = _audit_staged(args, cwd)
     if not results:

@@ -61,12 +61,13 @@ def write_output(option: str, target: str, text: str, inputs: Iterable[str]) -> 
             with open(path, "w", encoding="utf-8", newline="") as stream:
                 stream.write(text)
             return
-        _replace(path, text)
+        replace_text(path, text)
     except OSError as exc:
         raise UsageError(f"{target}: cannot write: {exc.strerror or exc}") from None
 
 
-def _replace(path: Path, text: str) -> None:
+def replace_text(path: Path, text: str) -> None:
+    """Write ``text`` to a new file beside ``path`` and rename it over ``path``."""
     # A symlinked output is followed (the link keeps pointing at the new
     # file); the temporary lives beside the real file so the rename is atomic.
     real = path.resolve() if path.is_symlink() else path
