@@ -28,7 +28,7 @@ from auditor.read.context import (
     text_of,
 )
 from auditor.read.footprints import read_footprint
-from auditor.read.limits import read_limited
+from auditor.read.limits import check_item_count, read_limited
 from auditor.read.outline import build_outline
 from auditor.read.parts import BoardParts, EdgePiece
 from auditor.read.sexpr import Locator, Node, decode, gc_paused, iter_top, parse
@@ -85,6 +85,7 @@ def read_board_text(text: str, path: str = "<string>") -> Board:
     >>> board.version, board.copper_layers
     (20240108, ('F.Cu', 'B.Cu'))
     """
+    check_item_count(text, path)
     locator = Locator(text)
     try:
         with gc_paused():

@@ -69,6 +69,8 @@ class NetGraph:
     def __init__(self, board: Board, net: str, start: tuple[str, BaseGeometry] | None = None):
         self.nodes: list[Node] = []
         self._rep: np.ndarray = np.zeros(0, dtype=int)
+        #: Pairs of touching nodes in the graph (copies of an item count once).
+        self.edge_count = 0
         if start is not None:
             self.nodes.append(Node("electrode", (start[0],), start[1]))
         self._add_items(board, net)
@@ -141,6 +143,7 @@ class NetGraph:
         if size == 0:
             return np.zeros((0,)), np.zeros((0,), dtype=int)
         rows, cols = self._edges(self._rep)
+        self.edge_count = len(rows)
         cost = np.array([max(n.length_mm, 0.0) for n in self.nodes])
         weights = (cost[rows] + cost[cols]) / 2 + _FREE
         graph = coo_matrix((weights, (rows, cols)), shape=(size, size)).tocsr()

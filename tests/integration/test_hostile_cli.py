@@ -315,3 +315,16 @@ def test_hook_force_backs_up_a_foreign_file(tmp_path: Path, monkeypatch: pytest.
     assert _run(capsys, "hook", "install", "--force")[0] == 0
     assert hook.with_name("pre-commit.padaudit-backup").read_text() == \
         "#!/bin/sh\necho theirs\n"
+
+
+# -- item 4: a clear limit for boards too large to audit in minutes ----------
+def test_item_limit_names_the_limit_and_how_to_raise_it(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str],
+        monkeypatch: pytest.MonkeyPatch) -> None:
+    board = _board(tmp_path)
+    monkeypatch.setenv("PADAUDIT_MAX_BOARD_ITEMS", "5")
+    code, out, err = _run(capsys, "audit", str(board), "--no-solve")
+    assert code == 2 and out == "" and err.count("\n") == 1
+    assert "board too large" in err and "PADAUDIT_MAX_BOARD_ITEMS" in err and "5" in err
+    monkeypatch.setenv("PADAUDIT_MAX_BOARD_ITEMS", "5000")
+    assert _run(capsys, "audit", str(board), "--no-solve")[0] == 0
