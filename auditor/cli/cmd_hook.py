@@ -11,6 +11,7 @@ pre-commit framework passes them), ``hook run`` audits those files.
 from __future__ import annotations
 
 import argparse
+import functools
 import os
 import shlex
 import stat
@@ -18,7 +19,7 @@ import sys
 from collections.abc import Callable
 from pathlib import Path, PurePosixPath
 
-from auditor.cli.audit_runner import auditor_for, shown_as
+from auditor.cli.audit_runner import AuditFn, auditor_for, shown_as
 from auditor.cli.colour import use_colour
 from auditor.cli.outputs import replace_text
 from auditor.errors import PadauditError, UsageError
@@ -120,7 +121,7 @@ def _audit_staged(args: argparse.Namespace, cwd: Path) -> list[tuple[str, int]]:
         with board_at(root / Path(*path.parts), "") as copy:
             return _show(shown_as(audit(str(copy)), f"{path} (staged)"))
 
-    return [_guarded(str(path), lambda p=path: staged(p)) for path in boards]
+    return [_guarded(str(path), functools.partial(staged, path)) for path in boards]
 
 
 def _guarded(name: str, check: Callable[[], int]) -> tuple[str, int]:
@@ -131,6 +132,10 @@ def _guarded(name: str, check: Callable[[], int]) -> tuple[str, int]:
     except PadauditError as exc:
         sys.stderr.write(f"padaudit: {exc}\n")
         return name, EXIT_BAD_INPUT
+
+
+def _audit_file(audit: AuditFn, path: str) -> int:
+    return _show(audit(path))
 
 
 def _show(report: Report) -> int:
@@ -148,7 +153,7 @@ def run(args: argparse.Namespace) -> int:
         return 0
     if args.files:
         audit = auditor_for(args)
-        results = [_guarded(f, lambda f=f: _show(audit(f))) for f in args.files]
+        results = [_guarded(f, functools.partial(_audit_file, audit, f)) for f in args.files]
     else:
         results = _audit_staged(args, cwd)
     if not results:

@@ -106,7 +106,7 @@ def stdout_may_close() -> Iterator[None]:
         silence_stdout()
 
 
-def written_to_stdout(write: Callable[[], None]) -> None:
+def written_to_stdout(write: Callable[[], object]) -> None:
     """Call ``write`` under :func:`stdout_may_close`."""
     with stdout_may_close():
         write()
