@@ -21,7 +21,7 @@ from pathlib import Path, PurePosixPath
 
 from auditor.cli.audit_runner import AuditFn, auditor_for, shown_as
 from auditor.cli.colour import use_colour
-from auditor.cli.outputs import replace_text
+from auditor.cli.outputs import replace_text, written_to_stdout
 from auditor.errors import PadauditError, UsageError
 from auditor.gitrev import board_at, repo_root, run_git, staged_boards
 from auditor.report.cautions import with_cautions
@@ -140,7 +140,8 @@ def _audit_file(audit: AuditFn, path: str) -> int:
 
 def _show(report: Report) -> int:
     report = with_cautions(report)
-    render(report, "text", sys.stdout, use_colour("auto", sys.stdout, os.environ))
+    colour = use_colour("auto", sys.stdout, os.environ)
+    written_to_stdout(lambda: render(report, "text", sys.stdout, colour))
     return report.exit_code
 
 
