@@ -18,7 +18,12 @@ from pathlib import Path
 
 from auditor.cli.audit_runner import AuditFn, auditor_for, shown_as
 from auditor.cli.colour import COLOUR_CHOICES, use_colour
-from auditor.cli.outputs import require_value, write_output, written_to_stdout
+from auditor.cli.outputs import (
+    refuse_inputs,
+    require_value,
+    write_output,
+    written_to_stdout,
+)
 from auditor.errors import UsageError
 from auditor.report.diff import compare_reports
 from auditor.report.diff_render import DIFF_FORMATS, render_diff
@@ -84,15 +89,16 @@ def run(args: argparse.Namespace) -> int:
     for name, side in (("OLD", args.old), ("NEW", args.new)):
         require_value(name, side)
     require_value("--output", args.output)
+    boards = [args.old, args.new] + [side.partition(":")[2] for side in (args.old, args.new)]
+    if args.output:  # refused before two audits, not after
+        refuse_inputs("--output", args.output, boards)
     audit = auditor_for(args)
     diff = compare_reports(_audited(audit, args.old), _audited(audit, args.new),
                            args.max_ratio_loss)
     if args.output:
         buffer = io.StringIO()
         render_diff(diff, args.format, buffer)
-        boards = [side.partition(":")[2] or side for side in (args.old, args.new)]
-        write_output("--output", args.output, buffer.getvalue(),
-                     [args.old, args.new, *boards])
+        write_output("--output", args.output, buffer.getvalue(), boards)
     else:
         colour = use_colour(args.color, sys.stdout, os.environ) and args.format == "text"
         written_to_stdout(lambda: render_diff(diff, args.format, sys.stdout, colour))
