@@ -26,7 +26,7 @@ from auditor.config.values import (
 )
 from auditor.errors import ConfigError
 from auditor.rules.finding import Severity
-from auditor.rules.profiles import check_level, known_thresholds
+from auditor.rules.profiles import check_level, known_thresholds, range_problem
 from auditor.rules.tomlfile import read_toml
 from auditor.sensors.selection import selection_from_mapping
 
@@ -145,6 +145,8 @@ def _thresholds(value: Any, where: ConfigText) -> dict[str, Any]:
                             + ", ".join(known), key)
         if not isinstance(item, bool | int | float) or not math.isfinite(item):
             raise sub.error(f"threshold {key!r} must be a finite number or true/false", key)
+        if range_problem(key, item):
+            raise sub.error(range_problem(key, item), key)
     return dict(sorted(value.items()))
 
 
