@@ -13,6 +13,7 @@ a capacitor could be picofarads or a three-digit code, so it is not guessed.
 
 from __future__ import annotations
 
+import math
 import re
 
 _CAP_MULTIPLIER = {"p": 1.0, "n": 1e3, "u": 1e6, "µ": 1e6, "μ": 1e6, "m": 1e9}  # -> pF
@@ -38,7 +39,8 @@ def _number(whole: str, frac: str | None, tail: str | None) -> float | None:
         return None  # 4.7u7 is no value
     digits = frac if frac is not None else tail
     text = (whole or "0") + ("." + digits if digits else "")
-    return float(text) if whole or digits else None
+    value = float(text) if whole or digits else None
+    return value if value is not None and math.isfinite(value) else None
 
 
 def capacitance_pf(text: str) -> float | None:

@@ -41,6 +41,9 @@ def _metrics(m: PadMetrics | None) -> dict[str, Any] | None:
         "cp_pad_pf": rounded(m.cp_pad_pf), "cp_trace_pf": rounded(m.cp_trace_pf),
         "cp_total_pf": rounded(m.cp_total_pf), "delta_c_pf": rounded(m.delta_c_pf),
         "delta_ratio": rounded(m.delta_ratio), "method": m.method, "notes": list(m.notes),
+        "cp_pin_pf": rounded(m.cp_pin_pf), "cp_parts_pf": rounded(m.cp_parts_pf),
+        "parts": [{"ref": p.ref, "value": p.value, "pf": rounded(p.pf),
+                   "connection": p.connection, "net": p.net} for p in m.parts],
         **_quick(m),
     }
 

@@ -18,6 +18,7 @@ from rich.table import Table
 from rich.text import Text
 
 from auditor.decide.records import DecidedFinding, Report, RuleInfo, SensorResult
+from auditor.report.text_lumped import render_lumped_lines
 from auditor.report.text_precise import render_precise_sections
 from auditor.rules.finding import Severity
 from auditor.sensors.model import name_order
@@ -126,6 +127,7 @@ def _sensor_table(console: Console, report: Report, order: str) -> None:
         table.add_row(*cells, Text(r.verdict, style=_VERDICT_STYLE.get(r.verdict, "")))
     console.print(table)
     console.print(Text("  capacitances in pF; ΔC is the change under a finger", style="dim"))
+    render_lumped_lines(console, rows)
 
 
 def _where(d: DecidedFinding) -> str:

@@ -34,6 +34,7 @@ from auditor.model.items import Footprint
 from auditor.model.part_value import capacitance_pf, resistance_ohm
 from auditor.model.results import LumpedPart, PadMetrics
 from auditor.sensors.model import Sensor
+from auditor.sensors.route import POWER_NAME
 from auditor.solve.setup import SELF_KINDS
 
 #: The controller pin's own capacitance when the profile sets no ``pin_pf``:
@@ -45,7 +46,7 @@ PIN_ORIGIN = "typical CMOS input pin, common practice, no source"
 
 _NOT_FITTED = re.compile(r"^(dnp|dnf|nc|n/?c|nf|nm|not fitted|do not (fit|populate))$",
                          re.IGNORECASE)
-_GROUND_NAME = re.compile(r"(^|[^a-z])(gnd|vss|ground|0v)($|[^a-z])", re.IGNORECASE)
+_GROUND_NAME = re.compile(r"gnd|vss|ground", re.IGNORECASE)  # GND, AGND, VSSA, ...
 _ADDED = ("to-ground", "to-net")
 
 
@@ -96,7 +97,7 @@ def classify(fp: Footprint, other_net: str, ground: str, controller_nets: set[st
         return LumpedPart(fp.ref, fp.value, None, "not-read", other_net)
     if other_net and (other_net == ground or (not ground and _GROUND_NAME.search(other_net))):
         return LumpedPart(fp.ref, fp.value, pf, "to-ground", other_net)
-    if other_net and other_net in controller_nets:
+    if other_net and other_net in controller_nets and not POWER_NAME.search(other_net):
         return LumpedPart(fp.ref, fp.value, pf, "between-pins", other_net)
     if not other_net:
         return LumpedPart(fp.ref, fp.value, pf, "other", other_net)
