@@ -10,6 +10,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from auditor.model.vocabulary import PART_CONNECTIONS, PartConnection
+
 #: How a part on the sense net enters Cp (``LumpedPart.connection``):
 #: ``to-ground`` and ``to-net`` add their capacitance in parallel (another net
 #: is taken as AC ground: a supply or a driven pin is a low impedance at the
@@ -19,8 +21,7 @@ from dataclasses import dataclass
 #: ``series-resistor`` and ``resistor`` change no static capacitance;
 #: ``not-read`` (value field not understood), ``not-fitted`` (DNP) and
 #: ``other`` (a part whose capacitance is not known) are not added.
-CONNECTIONS = ("to-ground", "to-net", "series", "between-pins", "series-resistor", "resistor",
-               "not-read", "not-fitted", "other")
+CONNECTIONS: tuple[PartConnection, ...] = PART_CONNECTIONS
 
 
 @dataclass(frozen=True)
@@ -35,7 +36,7 @@ class LumpedPart:
     ref: str
     value: str
     pf: float | None
-    connection: str
+    connection: PartConnection
     net: str = ""
 
 

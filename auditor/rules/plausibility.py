@@ -20,6 +20,7 @@ from __future__ import annotations
 import math
 from collections.abc import Iterator
 
+from auditor.model.vocabulary import SELF_KINDS
 from auditor.rules.finding import Finding, Severity
 from auditor.rules.registry import RuleCall, sensor_rule
 from auditor.sensors.model import Sensor
@@ -64,7 +65,7 @@ def _problems(sensor: Sensor, call: RuleCall) -> Iterator[tuple[str, tuple[str, 
         "of the pad.",
     severity=Severity.WARNING,
     thresholds=("max_plausible_ratio",),
-    kinds=("button", "slider", "wheel", "proximity"),
+    kinds=SELF_KINDS,
 )
 def model_implausible(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     """A model answers outside what it represents without knowing it: a

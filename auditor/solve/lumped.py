@@ -33,9 +33,9 @@ from auditor.model.board import Board
 from auditor.model.items import Footprint
 from auditor.model.part_value import capacitance_pf, resistance_ohm
 from auditor.model.results import LumpedPart, PadMetrics
+from auditor.model.vocabulary import SELF_KINDS
 from auditor.sensors.model import Sensor
 from auditor.sensors.route import POWER_NAME
-from auditor.solve.setup import SELF_KINDS
 
 #: The controller pin's own capacitance when the profile sets no ``pin_pf``:
 #: common practice, no source. A CMOS input pin is a few pF (the buffer's

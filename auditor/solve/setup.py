@@ -37,7 +37,6 @@ from __future__ import annotations
 import math
 from collections.abc import Mapping
 from dataclasses import dataclass, replace
-from typing import Literal
 
 from shapely.geometry import Polygon
 
@@ -45,6 +44,7 @@ from auditor.config import Config
 from auditor.field.api import PadSetup
 from auditor.field.pad_model import DEFAULT_GROUND_MARGIN_MM
 from auditor.model.board import Board
+from auditor.model.vocabulary import PadSide
 from auditor.sensors.model import LayerShadow, Sensor
 from auditor.solve.stack import board_layers_from_touch, overlay_with_mask, touch_mask
 from auditor.solve.traces import dielectric_between_mm, trace_runs_for
@@ -59,7 +59,6 @@ PLANE_MIN_SHADOW = 0.1
 DEFAULT_FINGER_MM = 10.0
 FINGER_ORIGIN = "physics.md §3: 8-10 mm disk model, contact patch 9-11 mm"
 
-SELF_KINDS = ("button", "slider", "wheel", "proximity")
 
 @dataclass(frozen=True)
 class FieldInput:
@@ -140,7 +139,7 @@ def _finger_mm(config: Config, thresholds: Mapping[str, float | int | bool]) -> 
 
 
 def _side(sensor: Sensor, board: Board, config: Config,
-          notes: list[str]) -> Literal["touch", "far"]:
+          notes: list[str]) -> PadSide:
     outer = board.copper_layers
     touch_layer = outer[0] if config.touch_side == "front" else outer[-1]
     far_layer = outer[-1] if config.touch_side == "front" else outer[0]

@@ -13,10 +13,10 @@ from pathlib import Path
 import pytest
 
 from auditor.config import load_config
+from auditor.config.profiles import load_profile
 from auditor.errors import ConfigError
 from auditor.model.items import Footprint
 from auditor.model.results import LumpedPart
-from auditor.rules.profiles import load_profile
 from auditor.solve.lumped import (
     DEFAULT_PIN_PF,
     SenseParts,
@@ -121,3 +121,13 @@ def test_in_range_pin_capacitance_is_read(tmp_path: Path) -> None:
     path = tmp_path / "padaudit.toml"
     path.write_text("[thresholds]\npin_pf = 0\n", encoding="utf-8")
     assert load_config(path).thresholds["pin_pf"] == 0
+
+
+def test_schema_lists_every_connection() -> None:
+    from auditor.model.vocabulary import PART_CONNECTIONS
+    from auditor.report.as_json import load_schema
+
+    schema = load_schema()
+    metrics = schema["properties"]["sensors"]["items"]["properties"]["metrics"]["oneOf"][1]
+    enum = metrics["properties"]["parts"]["items"]["properties"]["connection"]["enum"]
+    assert tuple(enum) == PART_CONNECTIONS

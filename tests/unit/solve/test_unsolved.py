@@ -65,6 +65,6 @@ def test_broken_sense_path_gives_no_numbers(tmp_path) -> None:  # type: ignore[n
     board.write_text("".join(lines), "utf-8")
     report = run_audit(board, AuditOptions(config_path=str(demo_config_path())))
     btn2 = next(r for r in report.sensors if r.sensor.name == "BTN2")
-    assert btn2.metrics is None and btn2.verdict == "unsolved"
+    assert btn2.metrics is None and btn2.strength == "unsolved"
     unsolved = [f.finding for f in report.findings if f.finding.rule_id == "electrode-unsolved"]
     assert any(f.sensor == "BTN2" and UNFOLLOWED_REASON in f.message for f in unsolved)
