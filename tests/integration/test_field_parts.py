@@ -122,3 +122,26 @@ def test_committed_boards_are_the_generator_output(tmp_path: Path) -> None:
 
     for path in write_all(tmp_path):
         assert path.read_bytes() == (FOLDER / path.name).read_bytes(), path.name
+
+
+@pytest.mark.parametrize(("pin_pf", "flagged"), [(0.0, {"TOUCH1", "TOUCH2"}), (5.0, set())])
+def test_implausible_ratio_is_raised_not_passed(tmp_path: Path, pin_pf: float,
+                                                flagged: set[str]) -> None:
+    """Pads with no ground in reach (the rule fixtures' ground-less board):
+    with nothing but copper in Cp the quick model gives ΔC/Cp of 70-95 %,
+    which used to read "ok". The guard raises model-implausible on each
+    (limit 50 %, rules/default.toml); a 5 pF pin brings the ratio back
+    under it."""
+    from fixtures.make_rule_boards import cases, write_case
+
+    case = next(c for c in cases() if c.name == "ground-ratio-small--bad")
+    board = write_case(case, tmp_path)
+    (tmp_path / "padaudit.toml").write_text(
+        f'profile = "default"\n[thresholds]\npin_pf = {pin_pf}\n', encoding="utf-8")
+    report = run_audit(board, AuditOptions())
+    found = {d.finding.sensor for d in report.findings
+             if d.finding.rule_id == "model-implausible"}
+    assert found == flagged
+    ratios = [r.metrics.delta_ratio for r in report.sensors if r.metrics is not None]
+    assert len(ratios) == 2
+    assert all(ratio > 0.5 for ratio in ratios) == bool(flagged)
