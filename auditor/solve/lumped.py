@@ -87,8 +87,7 @@ def classify(fp: Footprint, other_net: str, ground: str, controller_nets: set[st
     if _not_fitted(fp):
         return LumpedPart(fp.ref, fp.value, None, "not-fitted", other_net)
     prefix = _prefix(fp.ref)
-    if prefix == "R" or (prefix != "C" and resistance_ohm(fp.value) is not None
-                         and capacitance_pf(fp.value) is None and prefix in ("", "RN")):
+    if prefix in ("R", "RN") or (not prefix and resistance_ohm(fp.value) is not None):
         return LumpedPart(fp.ref, fp.value, None, "resistor", other_net)
     if prefix != "C":
         return LumpedPart(fp.ref, fp.value, None, "other", other_net)
@@ -216,7 +215,7 @@ _NOTE = {
                        "the RC time constant with Cp)",
     "resistor": "{ref} {value} to {net}: a resistor, no effect on static capacitance",
     "not-read": "{ref}: value {value!r} not read as a capacitance (IEC 60062 codes such as "
-                "22p, 4n7, 0.1uF are): not added to Cp",
+                "22p, 4n7, 0.1uF are): not counted (in series it is taken as a short)",
     "not-fitted": "{ref} ({value}) marked not fitted: not added",
     "other": "{ref} ({value}) on the sense net: its capacitance is not known, not added "
              "(an ESD diode adds a few pF)",
