@@ -15,8 +15,7 @@ from auditor.model.items import Pad, Track
 from auditor.sensors.model import SensePath, Sensor, TraceRun
 from auditor.sensors.nearby import neighbours_of_path, sensors_beside_path
 from auditor.sensors.netgraph import NetGraph, Walk, rooted_at_pad
-from auditor.sensors.reach import Reach, is_controller
-from auditor.sensors.route import route_of
+from auditor.sensors.reach import Reach, is_controller, reach_of
 from auditor.sensors.selection import SensorSelection
 
 
@@ -25,7 +24,7 @@ def sense_path(board: Board, sensor: Sensor, others: Sequence[Sensor],
     """The measured sense path of ``sensor`` (``others`` are the other electrodes)."""
     net = sensor.nets[0]
     uids = sensor.footprint_uids
-    reach = route_of(board, net, uids, selection)
+    reach = reach_of(board, net, uids, selection)
     graph = NetGraph(board, net, (sensor.layer, sensor.geometry))
     target = reach.series_pad or reach.controller_pad or _any_controller_pad(
         board, net, uids, selection)

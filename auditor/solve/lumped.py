@@ -34,8 +34,9 @@ from auditor.model.items import Footprint
 from auditor.model.part_value import capacitance_pf, resistance_ohm
 from auditor.model.results import LumpedPart, PadMetrics
 from auditor.model.vocabulary import SELF_KINDS
+from auditor.sensors.cues import is_ground_name
 from auditor.sensors.model import Sensor
-from auditor.sensors.route import POWER_NAME
+from auditor.sensors.roles import is_supply_name
 
 #: The controller pin's own capacitance when the profile sets no ``pin_pf``:
 #: common practice, no source. A CMOS input pin is a few pF (the buffer's
@@ -46,7 +47,6 @@ PIN_ORIGIN = "typical CMOS input pin, common practice, no source"
 
 _NOT_FITTED = re.compile(r"^(dnp|dnf|nc|n/?c|nf|nm|not fitted|do not (fit|populate))$",
                          re.IGNORECASE)
-_GROUND_NAME = re.compile(r"gnd|vss|ground", re.IGNORECASE)  # GND, AGND, VSSA, ...
 _ADDED = ("to-ground", "to-net")
 
 
@@ -94,9 +94,9 @@ def classify(fp: Footprint, other_net: str, ground: str, controller_nets: set[st
     pf = capacitance_pf(fp.value)
     if pf is None:
         return LumpedPart(fp.ref, fp.value, None, "not-read", other_net)
-    if other_net and (other_net == ground or (not ground and _GROUND_NAME.search(other_net))):
+    if other_net and (other_net == ground or (not ground and is_ground_name(other_net))):
         return LumpedPart(fp.ref, fp.value, pf, "to-ground", other_net)
-    if other_net and other_net in controller_nets and not POWER_NAME.search(other_net):
+    if other_net and other_net in controller_nets and not is_supply_name(other_net):
         return LumpedPart(fp.ref, fp.value, pf, "between-pins", other_net)
     if not other_net:
         return LumpedPart(fp.ref, fp.value, pf, "other", other_net)

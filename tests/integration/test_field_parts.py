@@ -3,8 +3,7 @@
 
 Each board is the plain one plus parts on TOUCH1's net. Before, Cp total was
 pad + trace only: a 22 pF capacitor to ground, a sampling capacitor or a
-series capacitor changed nothing, and a capacitor beside the series resistor
-made the path unfollowed. Now each is checked against circuit theory
+series capacitor changed nothing. Now each is checked against circuit theory
 (parallel capacitances add; series: C1 C2 / (C1 + C2)) applied to the plain
 board's own solved pad and trace, which the parts do not change.
 """
