@@ -27,6 +27,14 @@ from auditor.solve.suggest import SUGGESTING_RULES, electrode_for, suggestions_f
 from auditor.solve.suggest_levers import Electrode
 from auditor.solve.suggest_search import Predictor, Recorder
 
+#: A series capacitor divides ΔC (auditor.solve.lumped); the predictions add
+#: the lumped capacitance to Cp only.
+SERIES_CAVEAT = "a series capacitor's division of ΔC is left out"
+
+
+def _series(solved: PadMetrics) -> bool:
+    return any(part.connection == "series" for part in solved.parts)
+
 
 def lumped_pf(solved: PadMetrics) -> float:
     """What the electrode's Cp total holds besides the field model's pad and
@@ -63,13 +71,15 @@ def with_suggestions(report: Report, board: Board, sensors: tuple[Sensor, ...],
         if finding.sensor not in electrodes:
             found = electrode_for(by_name[finding.sensor], board, config, thresholds,
                                   disk_model=solved.method == "quick")
-            electrodes[finding.sensor] = (replace(found, lumped_pf=lumped_pf(solved))
+            electrodes[finding.sensor] = (replace(found, lumped_pf=lumped_pf(solved),
+                                                  caveat=SERIES_CAVEAT if _series(solved) else "")
                                           if found is not None else None)
         found = electrodes[finding.sensor]
         if found is not None:
             wanted.append((index, found))
     known = {e.setup: field_part(m) for name, e in electrodes.items()
-             if e is not None and e.disk_model and (m := metrics[name]) is not None}
+             if e is not None and e.disk_model and (m := metrics[name]) is not None
+             and not _series(m)}
     predict = _prefetched(report, wanted, known)
     findings = list(report.findings)
     for index, found in wanted:

@@ -103,6 +103,8 @@ def _said(text: str, electrode: Electrode, clears: bool) -> str:
         text = f"not enough on its own: {text}"
     if not electrode.disk_model:
         text += " (predicted with the disk model; this electrode's own figures are 3-D)"
+    if electrode.caveat:
+        text += f" ({electrode.caveat})"
     return text
 
 

@@ -57,6 +57,8 @@ class Electrode:
     #: Capacitance outside the field model in the electrode's Cp total
     #: (controller pin, parts on the sense net), pF.
     lumped_pf: float = 0.0
+    #: What the predictions leave out, appended to each suggestion's text.
+    caveat: str = ""
 
     def limit(self, name: str, default: float) -> float:
         """A profile threshold as a float."""
