@@ -28,7 +28,7 @@ from auditor.config import Config
 from auditor.field.api import PadSetup, PadSolve, solve_pad
 from auditor.field.matrix import CapacitanceMatrix
 from auditor.field.pad_model import check_setup, ground_outer_mm, reduced_network
-from auditor.field.precise import Conductor, LayeredMedium, solve_capacitance
+from auditor.field.precise import Conductor, LayeredMedium, solve_capacitance, solve_variants
 from auditor.field.traces import traces_pf
 from auditor.model.board import Board
 from auditor.pipeline_field import FieldInput
@@ -187,11 +187,12 @@ def pad_conductors(sensor: Sensor, board: Board, stack: PreciseStack,
 def _solve_pair(conductors: list[Conductor], medium: LayeredMedium, finger: Conductor | None,
                 cell_mm: float) -> tuple[CapacitanceMatrix, CapacitanceMatrix | None]:
     window = shapely.union_all([c.geometry for c in conductors]).envelope
-    baseline = merged_ground(solve_capacitance(conductors, medium, cell_mm, window=window))
     if finger is None:
-        return baseline, None
-    touched = solve_capacitance([*conductors, finger], medium, cell_mm, window=window)
-    return baseline, merged_ground(touched)
+        return merged_ground(solve_capacitance(conductors, medium, cell_mm, window=window)), None
+    # One batched solve: same mesh and operator with and without the finger.
+    baseline, touched = solve_variants(conductors, [(), (finger,)], medium, cell_mm,
+                                       window=window)
+    return merged_ground(baseline.matrix), merged_ground(touched.matrix)
 
 
 def metrics_from_precise(sensor: Sensor, board: Board, config: Config, mapped: FieldInput,

@@ -16,10 +16,9 @@ from dataclasses import dataclass
 
 import numpy as np
 import scipy.sparse
-import shapely
 from numpy.typing import NDArray
 
-from auditor.field.precise.cells import CellGrid
+from auditor.field.precise.cells import CellGrid, subcell_centres
 from auditor.field.precise.kernels import rectangle_inverse_distance
 
 FloatArray = NDArray[np.float64]
@@ -40,28 +39,6 @@ class EdgeCells:
 
     cells: IntArray
     occupied: BoolArray
-
-
-def occupied_subcells(geometry: shapely.Geometry, grid: CellGrid, cells: IntArray,
-                      partial: BoolArray) -> BoolArray:
-    """Sub-cell masks for ``cells`` of one conductor; only ``partial`` ones are sampled."""
-    mask = np.ones((cells.size, SUBDIVISIONS * SUBDIVISIONS), dtype=bool)
-    if not partial.any():
-        return mask
-    x, y = _subcell_centres(grid, cells[partial])
-    mask[partial] = shapely.contains_xy(geometry, x.ravel(), y.ravel()).reshape(x.shape)
-    return mask
-
-
-def _subcell_centres(grid: CellGrid, cells: IntArray) -> tuple[FloatArray, FloatArray]:
-    step = grid.cell_mm / SUBDIVISIONS
-    offsets = (np.arange(SUBDIVISIONS) + 0.5) * step
-    sub_x = np.repeat(offsets, SUBDIVISIONS)
-    sub_y = np.tile(offsets, SUBDIVISIONS)
-    x0 = grid.x0_mm + (cells // grid.ny) * grid.cell_mm
-    y0 = grid.y0_mm + (cells % grid.ny) * grid.cell_mm
-    return (np.asarray(x0[:, None] + sub_x[None, :], dtype=float),
-            np.asarray(y0[:, None] + sub_y[None, :], dtype=float))
 
 
 def near_correction(grid: CellGrid, level: EdgeCells, direct_coefficient: float
@@ -111,7 +88,7 @@ def _centres(grid: CellGrid, cells: IntArray) -> tuple[FloatArray, FloatArray]:
 
 
 def _centroids(grid: CellGrid, level: EdgeCells) -> tuple[FloatArray, FloatArray]:
-    x, y = _subcell_centres(grid, level.cells)
+    x, y = subcell_centres(grid, level.cells, SUBDIVISIONS)
     count = level.occupied.sum(axis=1)
     return (np.where(level.occupied, x, 0.0).sum(axis=1) / count,
             np.where(level.occupied, y, 0.0).sum(axis=1) / count)
@@ -121,7 +98,7 @@ def _subcell_potential(grid: CellGrid, level: EdgeCells, sources: IntArray,
                        at_x: FloatArray, at_y: FloatArray) -> FloatArray:
     """``int dA / r`` at the points from the source cells' charge spread over their
     occupied sub-cells, scaled to the charge a full uniform cell would carry."""
-    x, y = _subcell_centres(grid, level.cells[sources])
+    x, y = subcell_centres(grid, level.cells[sources], SUBDIVISIONS)
     half = 0.5 * grid.cell_mm / SUBDIVISIONS
     dx, dy = x - at_x[:, None], y - at_y[:, None]
     values = rectangle_inverse_distance(dx - half, dx + half, dy - half, dy + half, 0.0)

@@ -13,7 +13,9 @@ grid dense near the axis (Sommerfeld integral; physics.md section 1.11).
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 from numpy.typing import NDArray
@@ -64,6 +66,23 @@ class LayeredGreens:
         direct = self.direct[target, source] / np.hypot(rho, self.separations_mm[target, source])
         result: FloatArray = 2.0 * (direct + self.remainder(target, source, rho))
         return result
+
+
+def greens_covering(medium: LayeredMedium, radius_mm: float) -> LayeredGreens:
+    """A table good to at least ``radius_mm``, shared between solves (cached).
+
+    The radius is rounded up to a power of ``sqrt 2``, so the solves of one
+    board (every pad's window, the scans) reuse a few tables, and the table
+    a solve gets depends only on its own size, never on what was solved
+    before it.
+    """
+    steps = math.ceil(2.0 * math.log2(max(radius_mm, 1e-3)) - 1e-9)
+    return _cached_table(medium, 2.0 ** (0.5 * steps))
+
+
+@lru_cache(maxsize=8)
+def _cached_table(medium: LayeredMedium, radius_mm: float) -> LayeredGreens:
+    return tabulate_greens(medium, radius_mm)
 
 
 def tabulate_greens(medium: LayeredMedium, max_radius_mm: float) -> LayeredGreens:
