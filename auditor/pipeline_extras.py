@@ -22,7 +22,7 @@ from auditor.field.precise import (
     Finger,
     coupling_between,
     slider_scan,
-    solve_capacitance,
+    solve_variants,
 )
 from auditor.field.precise.results import CouplingTable, PreciseExtras, SegmentScan
 from auditor.model.board import Board
@@ -30,7 +30,6 @@ from auditor.pipeline_field import DEFAULT_FINGER_MM, SELF_KINDS
 from auditor.pipeline_precise import (
     PreciseStack,
     ground_conductors,
-    merged_ground,
     stack_for,
     window_around,
 )
@@ -63,8 +62,9 @@ def coupling_table(board: Board, sensors: tuple[Sensor, ...], config: Config,
     clear = {layer: shapely.union_all([s.geometry for s in pads if s.layer == layer])
              for layer in {s.layer for s in pads}}
     grounds = ground_conductors(board, stack, ground_net, near, {}, clear)
-    matrix = merged_ground(solve_capacitance(electrodes + grounds, stack.medium, cell_mm))
-    coupling = coupling_between(matrix, [c.name for c in electrodes])
+    names = [c.name for c in electrodes]
+    (solved,) = solve_variants(electrodes + grounds, [()], stack.medium, cell_mm, driven=names)
+    coupling = coupling_between(solved.matrix, names)
     return CouplingTable(coupling.names, coupling.crosstalk_pf, coupling.fraction_of_cp,
                          cell_mm)
 

@@ -27,6 +27,7 @@ BoolArray = NDArray[np.bool_]
 
 SUBDIVISIONS = 4
 _REACH = 1
+_PAIRS_PER_CHUNK = 4096
 
 
 @dataclass(frozen=True)
@@ -76,9 +77,9 @@ def _near_pairs(grid: CellGrid, level: EdgeCells) -> tuple[IntArray, IntArray]:
     edge = np.broadcast_to(partial[:, None, None], neighbour.shape)
     keep = neighbour >= 0
     first, second = edge[keep], neighbour[keep]
-    pairs = np.unique(np.concatenate([np.stack([first, second], 1),
-                                      np.stack([second, first], 1)]), axis=0)
-    return pairs[:, 0], pairs[:, 1]
+    size = np.int64(level.cells.size)
+    keys = np.unique(np.concatenate([first * size + second, second * size + first]))
+    return keys // size, keys % size
 
 
 def _centres(grid: CellGrid, cells: IntArray) -> tuple[FloatArray, FloatArray]:
@@ -97,14 +98,27 @@ def _centroids(grid: CellGrid, level: EdgeCells) -> tuple[FloatArray, FloatArray
 def _subcell_potential(grid: CellGrid, level: EdgeCells, sources: IntArray,
                        at_x: FloatArray, at_y: FloatArray) -> FloatArray:
     """``int dA / r`` at the points from the source cells' charge spread over their
-    occupied sub-cells, scaled to the charge a full uniform cell would carry."""
-    x, y = subcell_centres(grid, level.cells[sources], SUBDIVISIONS)
-    half = 0.5 * grid.cell_mm / SUBDIVISIONS
-    dx, dy = x - at_x[:, None], y - at_y[:, None]
-    values = rectangle_inverse_distance(dx - half, dx + half, dy - half, dy + half, 0.0)
+    occupied sub-cells, scaled to the charge a full uniform cell would carry.
+
+    A fully covered source is one rectangle; partly covered ones are summed
+    over their sub-cells in chunks, which bounds the temporary arrays.
+    """
     occupied = level.occupied[sources]
-    scale = SUBDIVISIONS * SUBDIVISIONS / occupied.sum(axis=1)
-    return np.asarray(np.where(occupied, values, 0.0).sum(axis=1) * scale, dtype=float)
+    full = occupied.all(axis=1)
+    centre_x, centre_y = _centres(grid, level.cells[sources[full]])
+    values = np.empty(sources.size)
+    values[full] = _cell_potential(grid, centre_x, centre_y, at_x[full], at_y[full])
+    partial = np.flatnonzero(~full)
+    for first in range(0, partial.size, _PAIRS_PER_CHUNK):
+        chunk = partial[first:first + _PAIRS_PER_CHUNK]
+        x, y = subcell_centres(grid, level.cells[sources[chunk]], SUBDIVISIONS)
+        half = 0.5 * grid.cell_mm / SUBDIVISIONS
+        dx, dy = x - at_x[chunk, None], y - at_y[chunk, None]
+        parts = rectangle_inverse_distance(dx - half, dx + half, dy - half, dy + half, 0.0)
+        mask = occupied[chunk]
+        values[chunk] = (np.where(mask, parts, 0.0).sum(axis=1)
+                         * (SUBDIVISIONS * SUBDIVISIONS) / mask.sum(axis=1))
+    return values
 
 
 def _cell_potential(grid: CellGrid, source_x: FloatArray, source_y: FloatArray,

@@ -33,6 +33,7 @@ FloatArray = NDArray[np.float64]
 
 _GAUSS_ORDER = 16
 _TABLE_POINTS = 320
+_RADII_PER_CHUNK = 32
 # exp(-38) ~ 3e-17: the remainder below this is under double precision.
 _DECAY_EXPONENT = 38.0
 
@@ -98,15 +99,20 @@ def tabulate_greens(medium: LayeredMedium, max_radius_mm: float) -> LayeredGreen
     radii = scale * np.sinh(u_grid)
     k, weights = _wavenumber_quadrature(medium, max_radius_mm)
     spectral = spectral_potential(medium, k)
-    bessel_weights = j0(np.outer(radii, k)) * weights
+    remainder_k = spectral - direct[None] * np.exp(-k[:, None, None] * separations[None])
+    values = np.empty((radii.size, count, count))
+    # A few radii at a time: the J0 table of a large window (10^4 wavenumbers
+    # by 320 radii) would otherwise be the largest array of the whole solve.
+    for first in range(0, radii.size, _RADII_PER_CHUNK):
+        chunk = slice(first, first + _RADII_PER_CHUNK)
+        bessel_weights = j0(np.outer(radii[chunk], k)) * weights
+        values[chunk] = np.einsum("rk,kij->rij", bessel_weights, remainder_k)
     rows: list[tuple[CubicSpline | None, ...]] = []
     for target in range(count):
         row: list[CubicSpline | None] = []
         for source in range(count):
-            remainder_k = spectral[:, target, source] - direct[target, source] * np.exp(
-                -k * separations[target, source])
-            values = bessel_weights @ remainder_k
-            row.append(CubicSpline(u_grid, values, bc_type=((1, 0.0), "not-a-knot")))
+            row.append(CubicSpline(u_grid, values[:, target, source],
+                                   bc_type=((1, 0.0), "not-a-knot")))
         rows.append(tuple(row))
     return LayeredGreens(medium, direct, separations, max_radius_mm, tuple(rows), scale)
 

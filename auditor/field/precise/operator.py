@@ -28,6 +28,8 @@ BoolArray = NDArray[np.bool_]
 
 _TILE_CELLS = 6
 _FFT_WORKERS = 2
+_TILES_PER_CHUNK = 256
+_APPLY_BYTES = 24 * 2**20
 
 
 @dataclass(frozen=True)
@@ -107,6 +109,14 @@ class CellOperator:
         """
         if active is None:
             active = np.ones((len(self.cells), charge.shape[1]), dtype=bool)
+        sheet_bytes = 16 * self.kernels.fft_shape[0] * (self.kernels.fft_shape[1] // 2 + 1)
+        per_call = max(1, _APPLY_BYTES // (sheet_bytes * (len(self.kernels.levels) + 3)))
+        if charge.shape[1] > per_call:
+            # Columns in groups: the spectra of every level and column at once
+            # would set the peak memory of a large window.
+            return np.concatenate([self.apply(charge[:, first:first + per_call],
+                                              active[:, first:first + per_call])
+                                   for first in range(0, charge.shape[1], per_call)], axis=1)
         on_level = self._level_columns(active)
         spectra = [_padded_rfft2(self._sheets(charge, active, b, columns), self.kernels.fft_shape)
                    if columns.size else None for b, columns in enumerate(on_level)]
@@ -219,18 +229,24 @@ def near_field_preconditioner(operator: CellOperator) -> Callable[[FloatArray], 
     Each tile's dense self-interaction is inverted exactly; the blocks are
     symmetric positive definite, so the result suits preconditioned CG.
     """
-    members, blocks = [], []
+    members, inverses = [], []
     for n, (a, cells) in enumerate(zip(operator.block_levels, operator.cells, strict=True)):
         local = _tile_members(operator.kernels.grid, cells)
-        valid = local >= 0
-        blocks.append(_tile_blocks(operator.kernels.quadrants[a][a],
-                                   cells[np.where(valid, local, 0)],
-                                   operator.kernels.grid.ny, valid))
-        members.append(np.where(valid, local + operator.starts[n], -1))
+        rows = slice(operator.starts[n], operator.starts[n + 1])
+        near = operator.near_correction[rows, rows]
+        # In chunks of tiles: the index and block arrays of a large pour's
+        # thousands of tiles would otherwise set the solve's peak memory.
+        for first in range(0, local.shape[0], _TILES_PER_CHUNK):
+            chunk = local[first:first + _TILES_PER_CHUNK]
+            valid = chunk >= 0
+            blocks = _tile_blocks(operator.kernels.quadrants[a][a],
+                                  cells[np.where(valid, chunk, 0)],
+                                  operator.kernels.grid.ny, valid)
+            _add_near_entries(blocks, chunk, near)
+            inverses.append(np.linalg.inv(blocks))
+        members.append(np.where(local >= 0, local + operator.starts[n], -1))
     all_members = np.concatenate(members)
-    all_blocks = np.concatenate(blocks)
-    _add_near_entries(all_blocks, all_members, operator.near_correction)
-    all_inverses = np.linalg.inv(all_blocks)
+    all_inverses = np.concatenate(inverses)
     valid = all_members >= 0
     gather = np.where(valid, all_members, operator.size)
 
@@ -246,16 +262,21 @@ def near_field_preconditioner(operator: CellOperator) -> Callable[[FloatArray], 
 
 def _add_near_entries(blocks: FloatArray, members: IntArray,
                       near: scipy.sparse.csr_matrix) -> None:
-    """Add the sparse edge correction to the tile blocks it falls in."""
+    """Add the sparse edge correction to the tile blocks it falls in.
+
+    ``members`` are the tiles' unknowns (-1 for padding) in ``near``'s
+    numbering; entries between unknowns of different tiles, or of tiles not
+    in ``members``, are left out.
+    """
     if near.nnz == 0:
         return
-    tile_of = np.empty(near.shape[0], dtype=np.int64)
-    slot_of = np.empty(near.shape[0], dtype=np.int64)
+    tile_of = np.full(near.shape[0], -1, dtype=np.int64)
+    slot_of = np.zeros(near.shape[0], dtype=np.int64)
     tiles, slots = np.nonzero(members >= 0)
     tile_of[members[tiles, slots]] = tiles
     slot_of[members[tiles, slots]] = slots
     entries = near.tocoo()
-    same = tile_of[entries.row] == tile_of[entries.col]
+    same = (tile_of[entries.row] == tile_of[entries.col]) & (tile_of[entries.row] >= 0)
     np.add.at(blocks, (tile_of[entries.row[same]], slot_of[entries.row[same]],
                        slot_of[entries.col[same]]), entries.data[same])
 

@@ -139,8 +139,11 @@ def slider_scan(segments: Sequence[Conductor], finger: Finger, path: LineString,
     # The baseline and every finger position in one batched solve: the segments
     # are meshed once and share one operator (docs/precise-mode.md, Speed).
     variants = [()] + [(Conductor(FINGER, disk, finger.level),) for disk in disks]
+    # A grounded finger needs only the segments' own columns; the body network
+    # reduces the whole matrix.
+    driven = names if body is None else None
     baseline, *touched = (s.matrix for s in solve_variants(fixed, variants, medium, cell_mm,
-                                                           window=window))
+                                                           window=window, driven=driven))
     base_self = _segment_self_pf(baseline, names, body, touched=False)
     matrices = touched
     deltas = [_segment_self_pf(matrix, names, body, touched=True) - base_self

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from collections.abc import Iterator, Sequence
+from collections.abc import Collection, Iterator, Sequence
 from dataclasses import dataclass, replace
 
 import numpy as np
@@ -112,7 +112,8 @@ def solve_variants(fixed: Sequence[Conductor], variants: Sequence[Sequence[Condu
                    medium: LayeredMedium, cell_mm: float, *,
                    window: shapely.Geometry | None = None,
                    tolerance: float = VARIATIONAL_TOLERANCE,
-                   edge_correction: bool = True) -> tuple[PreciseSolve, ...]:
+                   edge_correction: bool = True,
+                   driven: Collection[str] | None = None) -> tuple[PreciseSolve, ...]:
     """Maxwell matrices of ``fixed`` plus each variant's conductors, in one batched solve.
 
     A variant is a set of further conductors (``()`` for none): a finger
@@ -123,6 +124,11 @@ def solve_variants(fixed: Sequence[Conductor], variants: Sequence[Sequence[Condu
     CG run on one operator, which is what makes many variants cheap. Variant
     conductors must lie on levels no fixed conductor uses (the finger on the
     touch face); a variant that does not is solved on its own.
+
+    ``driven`` names the conductors whose Maxwell rows and columns are
+    wanted (default: all); each result's matrix is then over those only,
+    every other conductor held at 0 V, and the others cost no right-hand
+    sides (a slider scan needs only the segments).
 
     Capacitances are the variational estimates of
     :class:`auditor.field.precise.system.BatchedSolution`, second order in
@@ -142,25 +148,39 @@ def solve_variants(fixed: Sequence[Conductor], variants: Sequence[Sequence[Condu
     """
     if not variants:
         return ()
+    if driven is not None and not driven:
+        raise UsageError("no conductor to drive")
     for variant in variants:
         _check_conductors([*fixed, *variant], medium)
+        missing = set(driven or ()) - {c.name for c in [*fixed, *variant]}
+        if missing:
+            raise UsageError(f"driven conductors not in the solve: {sorted(missing)}")
     fixed_levels = {c.level for c in fixed}
     joint = [list(v) for v in variants if not {c.level for c in v} & fixed_levels]
     alone = {n for n, v in enumerate(variants) if {c.level for c in v} & fixed_levels}
     geometries = [c.geometry for c in fixed] + [c.geometry for v in variants for c in v]
     grid = grid_around(geometries + ([window] if window is not None else []), cell_mm)
     fixed_meshes = _meshes(fixed, grid, edge_correction, 0)
-    variant_meshes = [(_meshes(v, grid, edge_correction, len(fixed)), len(v)) for v in joint]
+    variant_meshes = [(_meshes(v, grid, edge_correction, len(fixed)),
+                       _driven_indices([*fixed, *v], driven)) for v in joint]
     solved: Iterator[PreciseSolve] = iter(())
     if joint:
-        batch = solve_batched(fixed_meshes, len(fixed), variant_meshes, grid, medium,
-                              tolerance, edge_correction)
-        solved = iter(_packed([*fixed, *v], totals, raw, cell_mm, batch.iterations, unknowns)
-                      for v, totals, raw, unknowns in zip(joint, batch.totals, batch.raw,
-                                                          batch.unknowns, strict=True))
+        batch = solve_batched(fixed_meshes, variant_meshes, grid, medium, tolerance,
+                              edge_correction)
+        solved = iter(_packed([[*fixed, *v][i] for i in indices], totals, raw, cell_mm,
+                              batch.iterations, unknowns)
+                      for v, (_, indices), totals, raw, unknowns in zip(
+                          joint, variant_meshes, batch.totals, batch.raw, batch.unknowns,
+                          strict=True))
     return tuple(solve_variants([*fixed, *variants[n]], [()], medium, cell_mm, window=window,
-                                tolerance=tolerance, edge_correction=edge_correction)[0]
+                                tolerance=tolerance, edge_correction=edge_correction,
+                                driven=driven)[0]
                  if n in alone else next(solved) for n in range(len(variants)))
+
+
+def _driven_indices(conductors: Sequence[Conductor], driven: Collection[str] | None
+                    ) -> tuple[int, ...]:
+    return tuple(i for i, c in enumerate(conductors) if driven is None or c.name in driven)
 
 
 def _meshes(conductors: Sequence[Conductor], grid: CellGrid, edge_correction: bool,

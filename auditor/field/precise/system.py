@@ -57,13 +57,15 @@ class BatchedSolution:
     iterations: int
 
 
-def solve_batched(fixed: Sequence[LevelMesh], fixed_count: int,
-                  variants: Sequence[tuple[Sequence[LevelMesh], int]], grid: CellGrid,
-                  medium: LayeredMedium, tolerance: float, edge_correction: bool
-                  ) -> BatchedSolution:
-    """Solve the fixed meshes with each variant's meshes (``(meshes, conductor_count)``).
+def solve_batched(fixed: Sequence[LevelMesh], variants: Sequence[tuple[Sequence[LevelMesh],
+                                                                         Sequence[int]]],
+                  grid: CellGrid, medium: LayeredMedium, tolerance: float,
+                  edge_correction: bool) -> BatchedSolution:
+    """Solve the fixed meshes with each variant's meshes.
 
-    Conductor indices in a variant's meshes count from ``fixed_count``.
+    A variant is ``(meshes, driven)``: its own meshes (conductor indices
+    counting on from the fixed ones) and the conductors put at 1 V in turn;
+    its matrix is over ``driven`` (every other conductor at 0 V).
     """
     meshes = list(fixed) + [m for group, _ in variants for m in group]
     group_of = np.array([-1] * len(fixed) + [g for g, (group, _) in enumerate(variants)
@@ -71,7 +73,7 @@ def solve_batched(fixed: Sequence[LevelMesh], fixed_count: int,
     operator = _operator(meshes, grid, medium, edge_correction)
     owner = np.concatenate([m.owner for m in meshes])
     block_of = np.repeat(np.arange(len(meshes)), np.diff(operator.starts))
-    columns = [(g, j) for g, (_, count) in enumerate(variants) for j in range(fixed_count + count)]
+    columns = [(g, j) for g, (_, driven) in enumerate(variants) for j in driven]
     active = np.array([[group_of[n] in (-1, g) for g, _ in columns] for n in range(len(meshes))],
                       dtype=bool).reshape(len(meshes), len(columns))
     rows_active = active[block_of]
@@ -82,11 +84,10 @@ def solve_batched(fixed: Sequence[LevelMesh], fixed_count: int,
         max_iterations=max(200, 4 * int(np.sqrt(operator.size))))
     scale = grid.cell_mm * grid.cell_mm * PF_PER_KERNEL_UNIT
     totals, raw, unknowns = [], [], []
-    for g, (_, count) in enumerate(variants):
-        size = fixed_count + count
+    for g, (_, driven) in enumerate(variants):
         mine = [c for c, (group, _) in enumerate(columns) if group == g]
         rows = rows_active[:, mine[0]]
-        indicator = owner[rows][None, :] == np.arange(size)[:, None]
+        indicator = owner[rows][None, :] == np.array(driven)[:, None]
         solved = charge[rows][:, mine]
         first_order = indicator.astype(float) @ solved
         raw.append(first_order * scale)
