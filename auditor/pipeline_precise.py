@@ -112,7 +112,10 @@ def ground_conductors(board: Board, stack: PreciseStack, ground_net: str,
             pieces.append(board.copper_of_net(layer, ground_net))
         if not pieces:
             continue
-        copper = shapely.union_all(pieces).intersection(window)
+        # Cut each piece to the window first: the union then handles only the
+        # window's share of a board-wide pour.
+        frame = box(*window.bounds)
+        copper = shapely.union_all([p.intersection(frame) for p in pieces]).intersection(window)
         if layer in keep_clear:
             copper = copper.difference(keep_clear[layer])
         copper = _polygons_only(copper)
@@ -189,10 +192,12 @@ def _solve_pair(conductors: list[Conductor], medium: LayeredMedium, finger: Cond
     window = shapely.union_all([c.geometry for c in conductors]).envelope
     if finger is None:
         return merged_ground(solve_capacitance(conductors, medium, cell_mm, window=window)), None
-    # One batched solve: same mesh and operator with and without the finger.
+    # One batched solve: same mesh and operator with and without the finger,
+    # the ground's pieces on each layer tied into one node (one right-hand side).
+    tied = {c.name: GROUND for c in conductors if c.name.startswith(GROUND + "@")}
     baseline, touched = solve_variants(conductors, [(), (finger,)], medium, cell_mm,
-                                       window=window)
-    return merged_ground(baseline.matrix), merged_ground(touched.matrix)
+                                       window=window, tied=tied)
+    return baseline.matrix, touched.matrix
 
 
 def metrics_from_precise(sensor: Sensor, board: Board, config: Config, mapped: FieldInput,

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from collections.abc import Collection, Iterator, Sequence
+from collections.abc import Collection, Iterator, Mapping, Sequence
 from dataclasses import dataclass, replace
 
 import numpy as np
@@ -14,7 +14,7 @@ from auditor.field.matrix import CapacitanceMatrix
 from auditor.field.precise.cells import CellGrid, grid_around
 from auditor.field.precise.medium import LayeredMedium
 from auditor.field.precise.mesh import LevelMesh, mesh_levels
-from auditor.field.precise.system import PF_PER_KERNEL_UNIT, solve_batched
+from auditor.field.precise.system import PF_PER_KERNEL_UNIT, Variant, solve_batched
 
 FloatArray = NDArray[np.float64]
 
@@ -113,7 +113,8 @@ def solve_variants(fixed: Sequence[Conductor], variants: Sequence[Sequence[Condu
                    window: shapely.Geometry | None = None,
                    tolerance: float = VARIATIONAL_TOLERANCE,
                    edge_correction: bool = True,
-                   driven: Collection[str] | None = None) -> tuple[PreciseSolve, ...]:
+                   driven: Collection[str] | None = None,
+                   tied: Mapping[str, str] | None = None) -> tuple[PreciseSolve, ...]:
     """Maxwell matrices of ``fixed`` plus each variant's conductors, in one batched solve.
 
     A variant is a set of further conductors (``()`` for none): a finger
@@ -128,7 +129,10 @@ def solve_variants(fixed: Sequence[Conductor], variants: Sequence[Sequence[Condu
     ``driven`` names the conductors whose Maxwell rows and columns are
     wanted (default: all); each result's matrix is then over those only,
     every other conductor held at 0 V, and the others cost no right-hand
-    sides (a slider scan needs only the segments).
+    sides (a slider scan needs only the segments). ``tied`` maps conductor
+    names to a node name: conductors of one node are connected (one net on
+    several levels), share one right-hand side and appear as one row and
+    column named after the node; ``driven`` then names nodes.
 
     Capacitances are the variational estimates of
     :class:`auditor.field.precise.system.BatchedSolution`, second order in
@@ -150,9 +154,10 @@ def solve_variants(fixed: Sequence[Conductor], variants: Sequence[Sequence[Condu
         return ()
     if driven is not None and not driven:
         raise UsageError("no conductor to drive")
+    tied = tied or {}
     for variant in variants:
         _check_conductors([*fixed, *variant], medium)
-        missing = set(driven or ()) - {c.name for c in [*fixed, *variant]}
+        missing = set(driven or ()) - {tied.get(c.name, c.name) for c in [*fixed, *variant]}
         if missing:
             raise UsageError(f"driven conductors not in the solve: {sorted(missing)}")
     fixed_levels = {c.level for c in fixed}
@@ -161,26 +166,30 @@ def solve_variants(fixed: Sequence[Conductor], variants: Sequence[Sequence[Condu
     geometries = [c.geometry for c in fixed] + [c.geometry for v in variants for c in v]
     grid = grid_around(geometries + ([window] if window is not None else []), cell_mm)
     fixed_meshes = _meshes(fixed, grid, edge_correction, 0)
-    variant_meshes = [(_meshes(v, grid, edge_correction, len(fixed)),
-                       _driven_indices([*fixed, *v], driven)) for v in joint]
+    batched = [_variant([*fixed, *v], _meshes(v, grid, edge_correction, len(fixed)), driven,
+                        tied) for v in joint]
     solved: Iterator[PreciseSolve] = iter(())
     if joint:
-        batch = solve_batched(fixed_meshes, variant_meshes, grid, medium, tolerance,
+        batch = solve_batched(fixed_meshes, [b for b, _ in batched], grid, medium, tolerance,
                               edge_correction)
-        solved = iter(_packed([[*fixed, *v][i] for i in indices], totals, raw, cell_mm,
-                              batch.iterations, unknowns)
-                      for v, (_, indices), totals, raw, unknowns in zip(
-                          joint, variant_meshes, batch.totals, batch.raw, batch.unknowns,
-                          strict=True))
+        solved = iter(_packed(names, totals, raw, cell_mm, batch.iterations, unknowns)
+                      for (_, names), totals, raw, unknowns in zip(
+                          batched, batch.totals, batch.raw, batch.unknowns, strict=True))
     return tuple(solve_variants([*fixed, *variants[n]], [()], medium, cell_mm, window=window,
                                 tolerance=tolerance, edge_correction=edge_correction,
-                                driven=driven)[0]
+                                driven=driven, tied=tied)[0]
                  if n in alone else next(solved) for n in range(len(variants)))
 
 
-def _driven_indices(conductors: Sequence[Conductor], driven: Collection[str] | None
-                    ) -> tuple[int, ...]:
-    return tuple(i for i, c in enumerate(conductors) if driven is None or c.name in driven)
+def _variant(conductors: Sequence[Conductor], meshes: tuple[LevelMesh, ...],
+             driven: Collection[str] | None, tied: Mapping[str, str]
+             ) -> tuple[Variant, tuple[str, ...]]:
+    """The batched variant and the names of its matrix rows (driven nodes)."""
+    node_names = list(dict.fromkeys(tied.get(c.name, c.name) for c in conductors))
+    node_of = np.array([node_names.index(tied.get(c.name, c.name)) for c in conductors],
+                       dtype=np.int64)
+    rows = tuple(k for k, name in enumerate(node_names) if driven is None or name in driven)
+    return Variant(meshes, node_of, rows), tuple(node_names[k] for k in rows)
 
 
 def _meshes(conductors: Sequence[Conductor], grid: CellGrid, edge_correction: bool,
@@ -190,10 +199,9 @@ def _meshes(conductors: Sequence[Conductor], grid: CellGrid, edge_correction: bo
     return tuple(replace(m, owner=m.owner + first_index) for m in meshes)
 
 
-def _packed(conductors: Sequence[Conductor], totals: FloatArray, raw: FloatArray,
+def _packed(names: tuple[str, ...], totals: FloatArray, raw: FloatArray,
             cell_mm: float, iterations: int, unknowns: int) -> PreciseSolve:
     asymmetry = float(np.abs(raw - raw.T).max() / np.abs(raw).max())
-    names = tuple(c.name for c in conductors)
     return PreciseSolve(CapacitanceMatrix.from_array(names, totals), cell_mm, iterations,
                         unknowns, asymmetry)
 

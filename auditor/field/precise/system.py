@@ -26,8 +26,8 @@ from auditor.field.precise.operator import (
     cell_operator,
     conjugate_gradient,
     level_kernels,
-    near_field_preconditioner,
 )
+from auditor.field.precise.preconditioner import near_field_preconditioner
 
 FloatArray = NDArray[np.float64]
 IntArray = NDArray[np.int64]
@@ -57,43 +57,60 @@ class BatchedSolution:
     iterations: int
 
 
-def solve_batched(fixed: Sequence[LevelMesh], variants: Sequence[tuple[Sequence[LevelMesh],
-                                                                         Sequence[int]]],
-                  grid: CellGrid, medium: LayeredMedium, tolerance: float,
-                  edge_correction: bool) -> BatchedSolution:
-    """Solve the fixed meshes with each variant's meshes.
+@dataclass(frozen=True)
+class Variant:
+    """One variant of a batched solve.
 
-    A variant is ``(meshes, driven)``: its own meshes (conductor indices
-    counting on from the fixed ones) and the conductors put at 1 V in turn;
-    its matrix is over ``driven`` (every other conductor at 0 V).
+    ``meshes``: its own meshed levels (conductor indices counting on from the
+    fixed ones); ``node_of[i]``: the node (tied conductors share one) of
+    conductor ``i``, fixed ones first; ``driven``: the nodes put at 1 V in
+    turn, the rows and columns of its matrix (every other node at 0 V).
     """
-    meshes = list(fixed) + [m for group, _ in variants for m in group]
-    group_of = np.array([-1] * len(fixed) + [g for g, (group, _) in enumerate(variants)
-                                             for _ in group])
+
+    meshes: tuple[LevelMesh, ...]
+    node_of: IntArray
+    driven: tuple[int, ...]
+
+
+def solve_batched(fixed: Sequence[LevelMesh], variants: Sequence[Variant], grid: CellGrid,
+                  medium: LayeredMedium, tolerance: float, edge_correction: bool
+                  ) -> BatchedSolution:
+    """Solve the fixed meshes with each variant's meshes in one CG run."""
+    meshes = list(fixed) + [m for v in variants for m in v.meshes]
+    group_of = np.array([-1] * len(fixed) + [g for g, v in enumerate(variants)
+                                             for _ in v.meshes])
     operator = _operator(meshes, grid, medium, edge_correction)
     owner = np.concatenate([m.owner for m in meshes])
     block_of = np.repeat(np.arange(len(meshes)), np.diff(operator.starts))
-    columns = [(g, j) for g, (_, driven) in enumerate(variants) for j in driven]
+    columns = [(g, j) for g, v in enumerate(variants) for j in v.driven]
     active = np.array([[group_of[n] in (-1, g) for g, _ in columns] for n in range(len(meshes))],
                       dtype=bool).reshape(len(meshes), len(columns))
-    rows_active = active[block_of]
-    rhs = ((owner[:, None] == np.array([j for _, j in columns])[None, :]) & rows_active)
+    block_group = group_of[block_of]
+    nodes = [_row_nodes(v.node_of, owner, (block_group == -1) | (block_group == g))
+             for g, v in enumerate(variants)]
+    rhs = np.stack([nodes[g] == j for g, j in columns], axis=1).astype(float)
     charge, residual, iterations = conjugate_gradient(
         lambda values, live: operator.apply(values, active[:, live]),
-        near_field_preconditioner(operator), rhs.astype(float), tolerance,
+        near_field_preconditioner(operator), rhs, tolerance,
         max_iterations=max(200, 4 * int(np.sqrt(operator.size))))
     scale = grid.cell_mm * grid.cell_mm * PF_PER_KERNEL_UNIT
     totals, raw, unknowns = [], [], []
-    for g, (_, driven) in enumerate(variants):
+    for g, variant in enumerate(variants):
         mine = [c for c, (group, _) in enumerate(columns) if group == g]
-        rows = rows_active[:, mine[0]]
-        indicator = owner[rows][None, :] == np.array(driven)[:, None]
+        rows = nodes[g] >= 0
+        indicator = nodes[g][rows][None, :] == np.array(variant.driven)[:, None]
         solved = charge[rows][:, mine]
         first_order = indicator.astype(float) @ solved
         raw.append(first_order * scale)
         totals.append((first_order + solved.T @ residual[rows][:, mine]) * scale)
         unknowns.append(int(rows.sum()))
     return BatchedSolution(tuple(totals), tuple(raw), tuple(unknowns), iterations)
+
+
+def _row_nodes(node_of: IntArray, owner: IntArray, rows_active: BoolArray) -> IntArray:
+    """Node of every unknown in one variant, -1 where the variant does not use it."""
+    safe = np.minimum(owner, node_of.size - 1)
+    return np.asarray(np.where(rows_active, node_of[safe], -1), dtype=np.int64)
 
 
 def _operator(meshes: Sequence[LevelMesh], grid: CellGrid, medium: LayeredMedium,
