@@ -132,7 +132,8 @@ def solve_variants(fixed: Sequence[Conductor], variants: Sequence[Sequence[Condu
     sides (a slider scan needs only the segments). ``tied`` maps conductor
     names to a node name: conductors of one node are connected (one net on
     several levels), share one right-hand side and appear as one row and
-    column named after the node; ``driven`` then names nodes.
+    column named after the node, after the untied conductors; ``driven``
+    then names nodes.
 
     Capacitances are the variational estimates of
     :class:`auditor.field.precise.system.BatchedSolution`, second order in
@@ -185,7 +186,9 @@ def _variant(conductors: Sequence[Conductor], meshes: tuple[LevelMesh, ...],
              driven: Collection[str] | None, tied: Mapping[str, str]
              ) -> tuple[Variant, tuple[str, ...]]:
     """The batched variant and the names of its matrix rows (driven nodes)."""
-    node_names = list(dict.fromkeys(tied.get(c.name, c.name) for c in conductors))
+    # Untied conductors keep their order; tied nodes follow them.
+    node_names = ([c.name for c in conductors if c.name not in tied]
+                  + list(dict.fromkeys(tied[c.name] for c in conductors if c.name in tied)))
     node_of = np.array([node_names.index(tied.get(c.name, c.name)) for c in conductors],
                        dtype=np.int64)
     rows = tuple(k for k, name in enumerate(node_names) if driven is None or name in driven)
