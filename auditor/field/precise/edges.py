@@ -19,7 +19,11 @@ import scipy.sparse
 from numpy.typing import NDArray
 
 from auditor.field.precise.cells import CellGrid, subcell_centres
-from auditor.field.precise.kernels import rectangle_inverse_distance
+from auditor.field.precise.kernels import (
+    lattice_differences,
+    rectangle_inverse_distance,
+    rectangle_primitive,
+)
 
 FloatArray = NDArray[np.float64]
 IntArray = NDArray[np.int64]
@@ -111,10 +115,14 @@ def _subcell_potential(grid: CellGrid, level: EdgeCells, sources: IntArray,
     partial = np.flatnonzero(~full)
     for first in range(0, partial.size, _PAIRS_PER_CHUNK):
         chunk = partial[first:first + _PAIRS_PER_CHUNK]
-        x, y = subcell_centres(grid, level.cells[sources[chunk]], SUBDIVISIONS)
-        half = 0.5 * grid.cell_mm / SUBDIVISIONS
-        dx, dy = x - at_x[chunk, None], y - at_y[chunk, None]
-        parts = rectangle_inverse_distance(dx - half, dx + half, dy - half, dy + half, 0.0)
+        cells = level.cells[sources[chunk]]
+        steps = np.arange(SUBDIVISIONS + 1) * (grid.cell_mm / SUBDIVISIONS)
+        x = grid.x0_mm + (cells // grid.ny) * grid.cell_mm - at_x[chunk]
+        y = grid.y0_mm + (cells % grid.ny) * grid.cell_mm - at_y[chunk]
+        corners = rectangle_primitive((x[:, None] + steps)[:, :, None],
+                                      (y[:, None] + steps)[:, None, :], 0.0)
+        # sub-cell (i, j) is mask column i * S + j, as in subcell_centres
+        parts = lattice_differences(corners).reshape(chunk.size, -1)
         mask = occupied[chunk]
         values[chunk] = (np.where(mask, parts, 0.0).sum(axis=1)
                          * (SUBDIVISIONS * SUBDIVISIONS) / mask.sum(axis=1))
