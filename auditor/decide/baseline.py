@@ -7,7 +7,8 @@ in KiCad, nudging a part by a hair or solver noise do not make a finding
 "new". Entries are sorted, so the file itself is byte-stable.
 
 Matching counts: a key recorded once accepts one finding with that key; a
-second one is new. Entries left unmatched are *stale* and reported.
+second one is new. Entries left unmatched are *stale* and reported; those
+whose rule id no rule has are reported as unknown rule ids.
 """
 
 from __future__ import annotations
@@ -22,8 +23,13 @@ from auditor.decide.policy import baseline_leftovers, mark_baseline
 from auditor.decide.records import DecidedFinding, Report
 from auditor.errors import ConfigError
 from auditor.model.vocabulary import FindingKey
+from auditor.rules.registry import all_rules
 
 BASELINE_FORMAT = 1
+#: Said of an entry whose rule id no rule has: it can never match, and a
+#: misspelt id would otherwise pass as merely stale.
+_UNKNOWN = ": unknown rule id {rule_id!r} (no padaudit rule has it; misspelt, or from " \
+    "another version)"
 
 
 @dataclasses.dataclass(frozen=True)
@@ -112,7 +118,9 @@ def apply_baseline(report: Report, baseline: Baseline) -> Report:
     """
     marked, stale_keys = mark_baseline(report.findings, dict(baseline.counts))
     left = baseline_leftovers(marked, dict(baseline.counts))
+    known = {spec.rule_id for spec in all_rules()}
     stale = tuple(describe(k) + (f" (x{left[k]} not found)" if left[k] > 1 else "")
+                  + ("" if k[0] in known else _UNKNOWN.format(rule_id=k[0]))
                   for k in stale_keys)
     return dataclasses.replace(report, findings=marked,
                                stale_baseline=report.stale_baseline + stale)
