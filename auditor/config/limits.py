@@ -58,13 +58,13 @@ class Limit:
     zero_means: str = ""
     option: str = ""
 
-    def describe(self) -> str:
+    def describe(self, with_unit: bool = True) -> str:
         """The range as people read it, e.g. ``0.001 to 1000 mm, or 0 (no cover)``."""
         if self.kind == "flag":
             return "true or false"
-        low = f"more than {self.minimum:g}" if self.above else f"{self.minimum:g}"
-        unit = f" {self.unit}" if self.unit else ""
-        text = f"{low} to {self.maximum:g}{unit}"
+        low = f"more than {_num(self.minimum)}" if self.above else _num(self.minimum)
+        unit = f" {self.unit}" if self.unit and with_unit else ""
+        text = f"{low} to {_num(self.maximum)}{unit}"
         return text + (f", or 0 ({self.zero_means})" if self.zero_means else "")
 
     def problem(self, value: Any) -> str | None:
@@ -86,12 +86,16 @@ class Limit:
         unit = f" {self.unit}" if self.unit else ""
         zero = f", or 0 ({self.zero_means})" if self.zero_means else ""
         if self.above and value <= self.minimum:
-            return f"must be more than {self.minimum:g}{unit} (got {shown(value)})"
+            return f"must be more than {_num(self.minimum)}{unit} (got {shown(value)})"
         if value < self.minimum:
-            return f"must be at least {self.minimum:g}{unit}{zero} (got {shown(value)})"
+            return f"must be at least {_num(self.minimum)}{unit}{zero} (got {shown(value)})"
         if value > self.maximum:
-            return f"must be at most {self.maximum:g}{unit} (got {shown(value)})"
+            return f"must be at most {_num(self.maximum)}{unit} (got {shown(value)})"
         return None
+
+def _num(value: float) -> str:
+    return f"{value:.15g}"
+
 
 def shown(value: Any) -> str:
     """``value`` for a message; a huge integer by its number of digits."""
@@ -119,7 +123,7 @@ _CONFIG: dict[str, Limit] = {
         "number", "mm", 0.001, 1000.0, "below 1 µm the finger touches the copper and the "
         "graded mesh fails; above, " + _MESH, zero_means="no cover", option="--overlay MM:..."),
     "overlay.epsilon_r": Limit("number", "", 1.0, 1000.0, "vacuum is 1; 1000 is past "
-                               "ordinary cover materials (physics.md)", option="--overlay MM:ER"),
+                               "ordinary cover materials (physics.md §2)", option="--overlay MM:ER"),
     "sensors.min_area_mm2": Limit("number", "mm²", 0.0, 1e6, _BOARD + " (1 m²)"),
     "sensors.cue_min_area_mm2": Limit("number", "mm²", 0.0, 1e6, _BOARD + " (1 m²)"),
     "sensors.controller_min_pads": _count(100_000, 2.0),
@@ -145,8 +149,8 @@ _THRESHOLDS: dict[str, Limit] = {
     "under_shadow_min_fraction": _ratio(),
     "under_fill_max_ratio": _ratio(),
     "min_delta_ratio": _ratio(why="dC/Cp as a fraction; 1 is more than any pad gives"),
-    "max_crosstalk_ratio": _ratio(why="mutual over self capacitance is at most 1 "
-                                      "(Maxwell matrices, physics.md)"),
+    "max_crosstalk_ratio": _ratio(why="in a Maxwell capacitance matrix C_ii is at "
+                                      "least the sum of |C_ij| (physics.md §1.12; from memory)"),
     "max_ratio_loss": _ratio(why="a loss of dC/Cp as a fraction of it"),
     "segment_area_max_spread": _ratio(10.0, "a spread as a fraction of the mean area"),
     "ground_to_pad_min_ratio": _ratio(1000.0, "an area ratio; common practice, no source"),
