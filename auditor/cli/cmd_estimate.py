@@ -88,7 +88,7 @@ def _number(option: str, text: str, name: str) -> float:
         raise UsageError(f"{option}: expected a number, got {text!r}") from None
     problem = LIMITS[name].problem(value)
     if problem is not None:
-        raise UsageError(f"{option} {problem}")
+        raise UsageError(f"{option}: {problem}")
     return value
 
 

@@ -75,7 +75,7 @@ def test_estimate_refuses_with_the_table_range(argv: list[str], row: str,
                                                capsys: pytest.CaptureFixture[str]) -> None:
     assert main(["estimate", *argv]) == 2
     err = capsys.readouterr().err
-    assert err.count("\n") == 1 and err.startswith(f"padaudit: {argv[0]} must be")
+    assert err.count("\n") == 1 and err.startswith(f"padaudit: {argv[0]}: must be")
     assert LIMITS[row].option.split()[0] in (argv[0], "--overlay")
 
 
