@@ -37,6 +37,8 @@ _BOARD = "common practice, no source: larger than any printed board"
 _MESH = ("keeps the field mesh in floating point and in memory (1000 mm measured at "
          "16 s, 230 MB on the demo board)")
 _FRACTION = "a fraction of a whole"
+_ER = ("vacuum is 1; liquid water, about 80 (physics.md §2), is past any cover or board "
+       "material, and near-perfect reflections at higher er slow the --precise solve")
 
 
 @dataclass(frozen=True)
@@ -122,8 +124,7 @@ _CONFIG: dict[str, Limit] = {
     "overlay.thickness_mm": Limit(
         "number", "mm", 0.001, 1000.0, "below 1 µm the finger touches the copper and the "
         "graded mesh fails; above, " + _MESH, zero_means="no cover", option="--overlay MM:..."),
-    "overlay.epsilon_r": Limit("number", "", 1.0, 1000.0, "vacuum is 1; 1000 is past "
-                               "ordinary cover materials (physics.md §2)", option="--overlay MM:ER"),
+    "overlay.epsilon_r": Limit("number", "", 1.0, 100.0, _ER, option="--overlay MM:ER"),
     "sensors.min_area_mm2": Limit("number", "mm²", 0.0, 1e6, _BOARD + " (1 m²)"),
     "sensors.cue_min_area_mm2": Limit("number", "mm²", 0.0, 1e6, _BOARD + " (1 m²)"),
     "sensors.controller_min_pads": _count(100_000, 2.0),
@@ -176,7 +177,7 @@ _ESTIMATE: dict[str, Limit] = {
     "plane_fill": Limit("number", "", 0.0, 1.0, "copper coverage, 1 = solid",
                         option="--plane-fill"),
     "hatch_pitch_mm": _mm(1000.0, _MESH, above=True, option="--hatch-pitch"),
-    "board_er": Limit("number", "", 1.0, 1000.0, "vacuum is 1", option="--board-er"),
+    "board_er": Limit("number", "", 1.0, 100.0, _ER, option="--board-er"),
     "board_thickness_mm": _mm(1000.0, _MESH, above=True, option="--board-thickness"),
     "finger_diameter_mm": _mm(1000.0, _MESH, above=True, option="--finger"),
     "finger_height_mm": _mm(1000.0, _MESH, option="--finger-height"),
