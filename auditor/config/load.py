@@ -17,7 +17,7 @@ from typing import Any, cast
 # The module, not its names: profiles read TOML through this package, and whichever
 # of the two is imported first finds the other half-initialised.
 from auditor.config import profiles
-from auditor.config.limits import LIMITS
+from auditor.config.limits import GENERIC_THRESHOLD, LIMITS
 from auditor.config.model import Config, Overlay
 from auditor.config.toml_positions import read_toml
 from auditor.config.values import (
@@ -141,6 +141,11 @@ def _sensors(value: Any, where: ConfigText) -> Any:
     for key, item in value.items():
         if f"sensors.{key}" in LIMITS:
             limited(item, key, sub, f"sensors.{key}")
+        elif isinstance(item, int | float) and not isinstance(item, bool):
+            # A numeric key without a row yet: finite, from 0, within float.
+            problem = GENERIC_THRESHOLD.problem(item)
+            if problem is not None:
+                raise sub.error(f"{key} {problem}", key)
     return selection_from_mapping(value, sub.located)
 
 

@@ -103,3 +103,13 @@ def test_doc_lists_every_row() -> None:
         prefix, _, rest = key.partition(".")
         shown = rest if prefix in ("sensors", "thresholds", "estimate") else key
         assert f"| `{shown}` |" in table, key
+
+
+def test_every_numeric_sensors_key_has_a_row() -> None:
+    from dataclasses import fields
+
+    from auditor.sensors.selection import SensorSelection
+
+    numeric = [f.name for f in fields(SensorSelection) if f.type in ("float", "int")]
+    assert numeric
+    assert [n for n in numeric if f"sensors.{n}" not in LIMITS] == []
