@@ -11,8 +11,11 @@ this table does not know gets :data:`GENERIC_THRESHOLD`.
 
 Upper bounds keep the field mesh and the geometry in floating point and in
 memory: an air gap of 1e300 mm once grew to 21 GB, a 1e9 mm cover took 87 s
-and 4.5 GB. At the 1000 mm bound the demo board's audit took 16 s and 230 MB
-(12 s and 126 MB with the defaults).
+and 4.5 GB. On the demo board a 1000 mm cover took 16 s and 230 MB in the
+quick audit (12 s and 126 MB with the defaults) but over 240 s and 1.2 GB
+with --precise, so cover and air gap stop at 100 mm (104 s and 323 MB with
+--precise, as with the defaults); lengths only ``estimate`` reads stop at
+1000 mm.
 
 Examples
 --------
@@ -37,8 +40,9 @@ _BOARD = "common practice, no source: larger than any printed board"
 _MESH = ("keeps the field mesh in floating point and in memory (1000 mm measured at "
          "16 s, 230 MB on the demo board)")
 _FRACTION = "a fraction of a whole"
-_ER = ("vacuum is 1; liquid water, about 80 (physics.md §2), is past any cover or board "
-       "material, and near-perfect reflections at higher er slow the --precise solve")
+_COVER = ("past any cover; on the demo board --precise took 104 s and 323 MB at 100 mm "
+          "(171 s, 325 MB with defaults) and over 240 s and 1.2 GB at 1000 mm")
+_ER = "vacuum is 1; liquid water, about 80 (physics.md §2), is past any cover or board"
 
 
 @dataclass(frozen=True)
@@ -120,10 +124,10 @@ def _count(maximum: float, minimum: float = 0.0) -> Limit:
 
 
 _CONFIG: dict[str, Limit] = {
-    "air_gap_mm": _mm(1000.0, _MESH, option="--air-gap"),
+    "air_gap_mm": _mm(100.0, _COVER, option="--air-gap"),
     "overlay.thickness_mm": Limit(
-        "number", "mm", 0.001, 1000.0, "below 1 µm the finger touches the copper and the "
-        "graded mesh fails; above, " + _MESH, zero_means="no cover", option="--overlay MM:..."),
+        "number", "mm", 0.001, 100.0, "below 1 µm the finger touches the copper and the "
+        "graded mesh fails; above, " + _COVER, zero_means="no cover", option="--overlay MM:..."),
     "overlay.epsilon_r": Limit("number", "", 1.0, 100.0, _ER, option="--overlay MM:ER"),
     "sensors.min_area_mm2": Limit("number", "mm²", 0.0, 1e6, _BOARD + " (1 m²)"),
     "sensors.cue_min_area_mm2": Limit("number", "mm²", 0.0, 1e6, _BOARD + " (1 m²)"),
