@@ -165,6 +165,8 @@ _THRESHOLDS: dict[str, Limit] = {
     "trace_max_crossings": _count(100_000),
     "controller_max_cp_pf": Limit("number", "pF", 0.0, 100_000.0,
                                   "common practice, no source: past any controller input"),
+    "pin_pf": Limit("number", "pF", 0.0, 50.0,
+                    "a controller pin of more than 50 pF is a typing error, not a pin"),
     "min_delta_c_pf": Limit("number", "pF", 0.0, 1000.0,
                             "common practice, no source: past any finger's effect"),
 }

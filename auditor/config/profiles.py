@@ -37,6 +37,8 @@ MEASUREMENT_THRESHOLDS: Mapping[str, str] = {
                         "are listed",
     "max_ratio_loss": "largest loss of a pad's dC/Cp between two revisions, as a fraction "
                       "(padaudit diff, audit --against)",
+    "pin_pf": "the controller pin's own capacitance in pF, added to every "
+              "self-capacitance electrode's Cp total",
 }
 
 LEVELS = ("error", "warning", "info", "off")
