@@ -142,16 +142,13 @@ class CellOperator:
                 continue
             kernel = self.kernels.spectra[target, b]
             if np.array_equal(source_columns, columns):
-                _add_real_product(mixed, source, kernel)
+                mixed += source * kernel
                 continue
             # Only the columns that use both levels get a contribution.
             where = np.searchsorted(source_columns, columns)
             clipped = np.minimum(where, source_columns.size - 1)
             present = np.flatnonzero(source_columns[clipped] == columns)
-            if present.size == columns.size:
-                _add_real_product(mixed, source[clipped], kernel)
-            else:
-                mixed[present] += source[clipped[present]] * kernel
+            mixed[present] += source[clipped[present]] * kernel
         fields = _cropped_irfft2(mixed, self.kernels.fft_shape, (grid.nx, grid.ny))
         return fields.reshape(columns.size, -1)
 
@@ -190,18 +187,6 @@ class CellOperator:
             blocks.append(row_blocks)
         result: FloatArray = np.block(blocks) + self.near_correction.toarray()
         return result
-
-
-def _add_real_product(total: ComplexArray, spectra: ComplexArray, kernel: FloatArray) -> None:
-    """``total += spectra * kernel`` for a real ``kernel``, without a complex copy of it.
-
-    Viewed as (real, imaginary) pairs, the product is two real
-    multiplications per entry instead of a complex one (same values:
-    the imaginary part of the kernel is zero).
-    """
-    pairs = total.view(np.float64).reshape(*total.shape, 2)
-    source_pairs = spectra.view(np.float64).reshape(*spectra.shape, 2)
-    pairs += source_pairs * kernel[..., None]
 
 
 def _padded_rfft2(values: FloatArray, shape: tuple[int, int]) -> ComplexArray:
