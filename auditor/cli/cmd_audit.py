@@ -41,9 +41,14 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
     parser.add_argument("--no-solve", action="store_true",
                         help="skip the field solve: layout rules only, every electrode "
                              "reported unsolved")
-    parser.add_argument("--precise", action="store_true",
-                        help="solve the real copper shapes in 3-D (slower); adds pad-to-pad "
-                             "coupling and slider response")
+    method = parser.add_mutually_exclusive_group()
+    method.add_argument("--precise", action="store_true",
+                        help="solve every electrode's real copper in 3-D (slower); adds "
+                             "pad-to-pad coupling and slider response")
+    method.add_argument("--quick", action="store_true",
+                        help="solve every electrode with the disk model (fastest); by default "
+                             "each electrode gets the disk model or the 3-D solve as its "
+                             "shape and surroundings need")
     add_report_options(parser)
 
 

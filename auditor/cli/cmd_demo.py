@@ -31,8 +31,11 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
     parser.add_argument("--path", action="store_true",
                         help="print where the demo board is installed and stop "
                              "(copy it to try the other commands)")
-    parser.add_argument("--precise", action="store_true",
-                        help="solve the real copper shapes in 3-D (slower)")
+    method = parser.add_mutually_exclusive_group()
+    method.add_argument("--precise", action="store_true",
+                        help="solve every electrode's real copper in 3-D (slower)")
+    method.add_argument("--quick", action="store_true",
+                        help="solve every electrode with the disk model (fastest)")
     add_report_options(parser)
 
 

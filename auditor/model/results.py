@@ -27,6 +27,8 @@ class PadMetrics:
     quick_cp_pad_pf: float | None = None
     quick_cp_total_pf: float | None = None
     quick_delta_c_pf: float | None = None
+    #: Why this model answered (the automatic mode's test, or a forcing flag).
+    method_reason: str = ""
 
     @property
     def quick_difference(self) -> tuple[float, float] | None:
