@@ -40,7 +40,8 @@ def _metrics(m: PadMetrics | None) -> dict[str, Any] | None:
     return {
         "cp_pad_pf": rounded(m.cp_pad_pf), "cp_trace_pf": rounded(m.cp_trace_pf),
         "cp_total_pf": rounded(m.cp_total_pf), "delta_c_pf": rounded(m.delta_c_pf),
-        "delta_ratio": rounded(m.delta_ratio), "method": m.method, "notes": list(m.notes),
+        "delta_ratio": rounded(m.delta_ratio), "method": m.method,
+        "method_reason": m.method_reason, "notes": list(m.notes),
         **_quick(m),
     }
 

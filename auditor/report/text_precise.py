@@ -76,6 +76,17 @@ def method_table(console: Console, results: list[SensorResult]) -> None:
     console.print(table)
     console.print(Text("  precise: 3-D solve of the real copper; quick: the pad as a disk "
                        "(axisymmetric)", style="dim"))
+    _reasons(console, solved)
+
+
+def _reasons(console: Console, solved: list[SensorResult]) -> None:
+    """Why each model answered, electrodes with the same reason on one line."""
+    by_reason: dict[str, list[str]] = {}
+    for r in solved:
+        if r.metrics is not None and r.metrics.method_reason:
+            by_reason.setdefault(r.metrics.method_reason, []).append(r.sensor.name)
+    for reason, names in by_reason.items():
+        console.print(Text(f"  {', '.join(names)}: {reason}", style="dim"))
 
 
 def strongest_pairs(extras: PreciseExtras) -> list[CrosstalkPair]:
