@@ -16,7 +16,8 @@ from typing import TYPE_CHECKING
 
 from auditor import __version__
 from auditor.config import Config, discover_config, with_overrides
-from auditor.decide import Policy, decide, sensitivity_ranks, sensor_verdict
+from auditor.config.profiles import Profile, load_profile
+from auditor.decide import Policy, decide, sensitivity_ranks, sensor_strength
 from auditor.decide.baseline import Baseline, apply_baseline, load_baseline
 from auditor.decide.cautions import cautions_for
 from auditor.decide.records import Report, RuleInfo, RunInfo, SensorResult
@@ -25,7 +26,6 @@ from auditor.model.items import ReadWarning
 from auditor.model.results import PadMetrics
 from auditor.read import read_board
 from auditor.rules.context import RuleContext, RuleSettings, ThresholdValue
-from auditor.rules.profiles import Profile, load_profile
 from auditor.rules.registry import all_rules, run_rules
 from auditor.sensors import find_sensors, mark_sense_neighbours, measure_each
 from auditor.sensors.model import Sensor, name_order
@@ -152,7 +152,8 @@ def rule_settings(config: Config, nets_of_sensors: tuple[str, ...] = ()) -> Rule
         overlay_electrical_mm=config.overlay_electrical_mm,
         touch_side=config.touch_side, power=config.power,
         noisy_nets=config.noisy_nets,
-        controller_ref=config.controller or config.selection.controller_ref)
+        controller_ref=config.controller or config.selection.controller_ref,
+        electrodes_configured=config.selection.configured)
 
 
 def describe_warning(warning: ReadWarning) -> str:
@@ -267,7 +268,7 @@ def _sensor_results(sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetric
                     thresholds: Mapping[str, ThresholdValue]) -> tuple[SensorResult, ...]:
     ranks = sensitivity_ranks(metrics)
     return tuple(SensorResult(s, metrics.get(s.name), ranks.get(s.name, 0),
-                              sensor_verdict(metrics.get(s.name), thresholds))
+                              sensor_strength(metrics.get(s.name), thresholds))
                  for s in sensors)
 
 

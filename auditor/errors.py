@@ -7,7 +7,10 @@ Anything else escaping is an internal error (exit code 3).
 
 from __future__ import annotations
 
-from pathlib import Path
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:  # only a type here; pathlib costs start-up time of --version
+    from pathlib import Path
 
 
 class PadauditError(Exception):

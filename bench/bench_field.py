@@ -28,7 +28,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 from auditor.field import api, axisym, fem, pad_model  # noqa: E402
 from auditor.field.crosssection import (  # noqa: E402
     CrossSection,
-    Slab,
+    DielectricSlab,
     Strip,
     TraceSection,
     solve_cross_section,
@@ -77,7 +77,7 @@ def bench_microstrip() -> None:
         for u in (0.1, 0.2, 0.5, 1.0, 2.0, 5.0, 10.0):
             section = CrossSection((Strip("s", -u / 2, u / 2, 1.0),
                                     Strip("g", -math.inf, math.inf, 0.0)), "g",
-                                   (Slab(0.0, 1.0, er),))
+                                   (DielectricSlab(0.0, 1.0, er),))
             start = time.process_time()
             value = solve_cross_section(section).entry("s", "s") * 1e3
             times.append(time.process_time() - start)

@@ -11,9 +11,16 @@ import dataclasses
 
 from auditor.audit import run_audit
 from auditor.cli.audit_runner import gated_options
+from auditor.cli.options import (
+    add_fail_on,
+    add_overlay,
+    add_power,
+    add_profile,
+    add_solve_mode,
+    add_touch_side,
+)
 from auditor.cli.progress import ProgressCallback
 from auditor.cli.report_options import add_report_options, emit
-from auditor.config import POWER_CHOICES, TOUCH_SIDES
 
 
 def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
@@ -27,28 +34,15 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
     parser.add_argument("board", metavar="BOARD", help="the .kicad_pcb file")
     parser.add_argument("--config", metavar="FILE",
                         help="configuration file to use instead of searching for one")
-    parser.add_argument("--profile", metavar="NAME",
-                        help="rule profile: default, proximity, mutual, strict, or a .toml "
-                             "file")
-    parser.add_argument("--overlay", metavar="MM:MATERIAL|MM:ER",
-                        help="cover over the electrodes, e.g. 2:acrylic or 1.5:3.1")
-    parser.add_argument("--power", choices=POWER_CHOICES,
-                        help="how the product is powered (sets the ground-to-earth model)")
-    parser.add_argument("--touch-side", choices=TOUCH_SIDES,
-                        help="which side of the board faces the finger")
-    parser.add_argument("--fail-on", choices=("error", "warning", "info"),
-                        help="lowest severity that fails the run (default: error)")
+    add_profile(parser)
+    add_overlay(parser)
+    add_power(parser)
+    add_touch_side(parser)
+    add_fail_on(parser, "lowest severity that fails the run (default: error)")
     parser.add_argument("--no-solve", action="store_true",
                         help="skip the field solve: layout rules only, every electrode "
                              "reported unsolved")
-    method = parser.add_mutually_exclusive_group()
-    method.add_argument("--precise", action="store_true",
-                        help="solve every electrode's real copper in 3-D (slower); adds "
-                             "pad-to-pad coupling and slider response")
-    method.add_argument("--quick", action="store_true",
-                        help="solve every electrode with the disk model (fastest); by default "
-                             "each electrode gets the disk model or the 3-D solve as its "
-                             "shape and surroundings need")
+    add_solve_mode(parser, "; adds pad-to-pad coupling and slider response")
     add_report_options(parser)
 
 

@@ -10,11 +10,14 @@ from __future__ import annotations
 
 import argparse
 import dataclasses
+import shutil
 import sys
+import textwrap
 
 from auditor.audit import run_audit
 from auditor.cli.audit_runner import gated_options, shown_as
 from auditor.cli.main import EXIT_CLEAN, EXIT_FINDINGS
+from auditor.cli.options import add_solve_mode
 from auditor.cli.progress import ProgressCallback
 from auditor.cli.report_options import add_report_options, emit
 from auditor.demo import demo_board_path, demo_config_path
@@ -31,11 +34,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
     parser.add_argument("--path", action="store_true",
                         help="print where the demo board is installed and stop "
                              "(copy it to try the other commands)")
-    method = parser.add_mutually_exclusive_group()
-    method.add_argument("--precise", action="store_true",
-                        help="solve every electrode's real copper in 3-D (slower)")
-    method.add_argument("--quick", action="store_true",
-                        help="solve every electrode with the disk model (fastest)")
+    add_solve_mode(parser)
     add_report_options(parser)
 
 
@@ -59,9 +58,18 @@ def run(args: argparse.Namespace) -> int:
     code = emit(report, args)
     if code == EXIT_FINDINGS:
         if args.format == "text" and not args.output:
-            sys.stdout.write(
-                "\nThis is the demo: the problems above were planted on purpose. "
-                "`padaudit audit` would exit 1 here and stop a merge.\n"
-                f"Copy the board to experiment: padaudit demo --path  ->  {board}\n")
+            _closing("This is the demo: the problems above were planted on purpose. "
+                     "`padaudit audit` would exit 1 here and stop a merge.",
+                     f"Copy the board to experiment: padaudit demo --path  ->  {board}")
         return EXIT_CLEAN
     return code
+
+
+def _closing(*paragraphs: str) -> None:
+    """The closing lines, wrapped at words to the terminal (100 columns in a
+    file or pipe); a path longer than a line stays whole."""
+    width = shutil.get_terminal_size((100, 24)).columns if sys.stdout.isatty() else 100
+    sys.stdout.write("\n")
+    for text in paragraphs:
+        sys.stdout.write(textwrap.fill(text, width=max(width - 1, 40), break_long_words=False,
+                                       break_on_hyphens=False) + "\n")

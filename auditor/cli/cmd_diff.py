@@ -17,6 +17,7 @@ from pathlib import Path
 
 from auditor.cli.audit_runner import AuditFn, auditor_for, shown_as
 from auditor.cli.colour import COLOUR_CHOICES, use_colour
+from auditor.cli.options import add_fail_on, add_profile
 from auditor.decide.diff import compare_reports
 from auditor.decide.records import Report
 from auditor.errors import UsageError
@@ -50,10 +51,9 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
                         default="auto")
     parser.add_argument("--config", metavar="FILE",
                         help="configuration file for both sides instead of searching for one")
-    parser.add_argument("--profile", metavar="NAME", help="rule profile used for both sides")
-    parser.add_argument("--fail-on", dest="fail_on", choices=("error", "warning", "info"),
-                        help="severity at which a new finding fails (default: configuration, "
-                             "else error)")
+    add_profile(parser, "rule profile used for both sides")
+    add_fail_on(parser, "severity at which a new finding fails (default: configuration, "
+                        "else error)")
 
 
 @contextlib.contextmanager

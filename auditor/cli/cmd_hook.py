@@ -19,6 +19,7 @@ from pathlib import Path
 
 from auditor.cli.audit_runner import auditor_for, shown_as
 from auditor.cli.colour import use_colour
+from auditor.cli.options import add_fail_on, add_profile
 from auditor.decide.records import Report
 from auditor.errors import UsageError
 from auditor.gitrev import board_at, repo_root, run_git, staged_boards
@@ -41,14 +42,12 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
     install = actions.add_parser("install", help="write the git pre-commit hook")
     install.add_argument("--force", action="store_true",
                          help="replace a pre-commit hook that padaudit did not write")
-    install.add_argument("--fail-on", dest="fail_on", choices=("error", "warning", "info"),
-                         help="severity that blocks a commit (default: the configuration's)")
+    add_fail_on(install, "severity that blocks a commit (default: the configuration's)")
     check = actions.add_parser("run", help="audit staged boards (or the given files)")
     check.add_argument("files", nargs="*", metavar="FILE",
                        help="boards to audit as they are on disk (default: staged boards)")
-    check.add_argument("--fail-on", dest="fail_on", choices=("error", "warning", "info"),
-                       help="lowest severity that fails (default: the configuration's)")
-    check.add_argument("--profile", metavar="NAME", help="rule profile")
+    add_fail_on(check, "lowest severity that fails (default: the configuration's)")
+    add_profile(check)
     check.add_argument("--config", metavar="FILE", help="configuration file to use")
 
 

@@ -5,9 +5,10 @@ from __future__ import annotations
 import argparse
 import sys
 
+from auditor.cli.wrap import write_lines
+from auditor.config.profiles import load_profile
 from auditor.errors import UsageError
-from auditor.rules.docs import rule_text
-from auditor.rules.profiles import load_profile
+from auditor.report.rules_md import rule_text
 from auditor.rules.registry import all_rules
 
 
@@ -28,11 +29,11 @@ def run(args: argparse.Namespace) -> int:
     specs = {spec.rule_id: spec for spec in all_rules()}
     if args.rule_id is None:
         width = max(len(k) for k in specs)
-        for rule_id, spec in specs.items():
-            level = profile.level_of(rule_id) or spec.severity.label
-            sys.stdout.write(f"{rule_id:<{width}}  {level:<7}  {spec.title}\n")
+        write_lines(sys.stdout, [f"{rule_id:<{width}}  "
+                                 f"{profile.level_of(rule_id) or spec.severity.label:<7}  "
+                                 f"{spec.title}" for rule_id, spec in specs.items()])
         return 0
     if args.rule_id not in specs:
         raise UsageError(f"unknown rule {args.rule_id!r}; `padaudit rules` lists them")
-    sys.stdout.write(rule_text(specs[args.rule_id], profile))
+    write_lines(sys.stdout, rule_text(specs[args.rule_id], profile).splitlines())
     return 0

@@ -31,10 +31,22 @@ EXIT_FINDINGS = 1
 EXIT_BAD_INPUT = 2
 EXIT_INTERNAL = 3
 
-#: Sub-commands in the order ``--help`` lists them.
-COMMANDS: tuple[str, ...] = (
-    "audit", "demo", "inspect", "sensors", "estimate", "diff", "hook", "rules",
-)
+#: Sub-commands in the order ``--help`` lists them, with the one-line summary
+#: that list shows. Kept here (a test checks each module registers the same
+#: text) so ``padaudit --help`` and ``--version`` import no command module:
+#: those pull in numpy, scipy and shapely, most of a second on a cold start.
+SUMMARIES: dict[str, str] = {
+    "audit": "check a board's touch electrodes against the layout rules",
+    "demo": "audit the bundled demo board (an invented room panel)",
+    "inspect": "show what was read from a board file",
+    "sensors": "list the sense electrodes found and why",
+    "estimate": "estimate Cp and finger ΔC for a described pad (no board needed)",
+    "diff": "compare two boards or revisions pad by pad",
+    "hook": "git pre-commit hook: install or run",
+    "rules": "list the layout rules, or explain one",
+    "kicad-rules": "write the touch limits as KiCad custom design rules",
+}
+COMMANDS: tuple[str, ...] = tuple(SUMMARIES)
 
 
 class _Parser(argparse.ArgumentParser):
@@ -60,19 +72,23 @@ def _chosen_command(argv: Sequence[str]) -> str | None:
 def _load_commands(only: str | None = None) -> dict[str, ModuleType]:
     """The command modules: only ``only``'s when it is given (each pulls in
     its own stages, and importing all of them would cost a tenth of a
-    second of every run), else all, for ``--help`` and for usage errors."""
+    second of every run), else all (for tests and tools that want the full
+    parser; ``main`` itself never loads them all)."""
     modules: dict[str, ModuleType] = {}
     for name in (only,) if only else COMMANDS:
+        module = f"auditor.cli.cmd_{name.replace('-', '_')}"
         try:
-            modules[name] = importlib.import_module(f"auditor.cli.cmd_{name}")
+            modules[name] = importlib.import_module(module)
         except ModuleNotFoundError as exc:
-            if exc.name != f"auditor.cli.cmd_{name}":
+            if exc.name != module:
                 raise
     return modules
 
 
-def build_parser(modules: dict[str, ModuleType]) -> argparse.ArgumentParser:
-    """The full argument parser with every available sub-command."""
+def build_parser(modules: dict[str, ModuleType] | None) -> argparse.ArgumentParser:
+    """The argument parser with every available sub-command; with ``None``,
+    the overview parser (each command by name and summary only), enough for
+    ``--help``, ``--version`` and a usage error without a known command."""
     parser = _Parser(
         prog="padaudit",
         description="Audit capacitive touch electrodes on KiCad boards.",
@@ -81,6 +97,10 @@ def build_parser(modules: dict[str, ModuleType]) -> argparse.ArgumentParser:
     parser.add_argument("--debug", action="store_true",
                         help="show a traceback on internal errors")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    if modules is None:
+        for name, summary in SUMMARIES.items():
+            sub.add_parser(name, help=summary)
+        return parser
     for module in modules.values():
         module.register(sub)
     return parser
@@ -89,12 +109,14 @@ def build_parser(modules: dict[str, ModuleType]) -> argparse.ArgumentParser:
 def main(argv: Sequence[str] | None = None) -> int:
     """Run padaudit; returns the process exit code."""
     words = list(sys.argv[1:] if argv is None else argv)
-    modules = _load_commands(_chosen_command(words))
-    parser = build_parser(modules)
-    args = parser.parse_args(words)
-    if args.command is None:
-        parser.print_help()
+    chosen = _chosen_command(words)
+    if chosen is None:  # --help, --version, nothing or a usage error: no command runs
+        overview = build_parser(None)
+        overview.parse_args(words)
+        overview.print_help()
         return EXIT_BAD_INPUT
+    modules = _load_commands(chosen)
+    args = build_parser(modules).parse_args(words)
     try:
         code: int = modules[args.command].run(args)
         return code

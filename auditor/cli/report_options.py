@@ -36,7 +36,7 @@ def add_report_options(parser: argparse.ArgumentParser) -> None:
                        "electrodes and findings to FILE (SVG)")
     group.add_argument("--color", "--colour", dest="color", choices=COLOUR_CHOICES,
                        default="auto", help="colour in the terminal report (default: auto)")
-    group.add_argument("--quiet", action="store_true",
+    group.add_argument("-q", "--quiet", action="store_true",
                        help="no progress bar, and no summary line when the report goes to --output")
     group.add_argument("--order", choices=ORDERS, default="weakest",
                        help="electrode table order: weakest first or by rank")

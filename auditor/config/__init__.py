@@ -13,9 +13,9 @@ from auditor.config.load import (
            find_config,
            load_config,
 )
-from auditor.config.model import POWER_CHOICES, TOUCH_SIDES, Config, Overlay, Waiver
+from auditor.config.model import Config, Overlay, Waiver
 from auditor.config.overrides import parse_overlay_spec, with_overrides
 
-__all__ = ["POWER_CHOICES", "TOUCH_SIDES", "VALID_KEYS", "Config", "Overlay", "Waiver",
+__all__ = ["VALID_KEYS", "Config", "Overlay", "Waiver",
            "config_from_mapping", "discover_config", "find_config", "load_config",
            "parse_overlay_spec", "with_overrides"]

@@ -15,7 +15,11 @@ from dataclasses import replace
 from pathlib import Path
 from typing import Any, cast
 
-from auditor.config.model import POWER_CHOICES, TOUCH_SIDES, Config, Overlay, Power, TouchSide
+# The module, not its names: profiles read TOML through this package, and whichever
+# of the two is imported first finds the other half-initialised.
+from auditor.config import profiles
+from auditor.config.model import Config, Overlay
+from auditor.config.toml_positions import read_toml
 from auditor.config.values import (
     ConfigText,
     choice,
@@ -25,9 +29,14 @@ from auditor.config.values import (
     waivers_from,
 )
 from auditor.errors import ConfigError
+from auditor.model.vocabulary import (
+    POWER_PRESETS,
+    SEVERITY_NAMES,
+    TOUCH_SIDES,
+    PowerPreset,
+    TouchSide,
+)
 from auditor.rules.finding import Severity
-from auditor.rules.profiles import check_level, known_thresholds
-from auditor.rules.tomlfile import read_toml
 from auditor.sensors.selection import selection_from_mapping
 
 CONFIG_NAMES = ("padaudit.toml", "pyproject.toml")
@@ -130,14 +139,14 @@ def _severity(value: Any, where: ConfigText) -> dict[str, str]:
     if not isinstance(value, dict):
         raise where.error("severity must be a table of rule id = level", "severity")
     sub = where.sub("severity")
-    return {rule_id: check_level(rule_id, level, where.path, sub.line_of(rule_id))
+    return {rule_id: profiles.check_level(rule_id, level, where.path, sub.line_of(rule_id))
             for rule_id, level in sorted(value.items())}
 
 
 def _thresholds(value: Any, where: ConfigText) -> dict[str, Any]:
     if not isinstance(value, dict):
         raise where.error("thresholds must be a table of name = number", "thresholds")
-    known = known_thresholds()
+    known = profiles.known_thresholds()
     sub = where.sub("thresholds")
     for key, item in value.items():
         if key not in known:
@@ -149,7 +158,7 @@ def _thresholds(value: Any, where: ConfigText) -> dict[str, Any]:
 
 
 def _fail_on(value: Any, where: ConfigText) -> Severity:
-    return Severity.parse(choice(value, ("error", "warning", "info"), "fail_on", where))
+    return Severity.parse(choice(value, SEVERITY_NAMES, "fail_on", where))
 
 
 _READERS: dict[str, Callable[[Any, ConfigText], Any]] = {
@@ -157,7 +166,7 @@ _READERS: dict[str, Callable[[Any, ConfigText], Any]] = {
     "overlay": _overlay,
     "air_gap_mm": lambda v, w: number(v, "air_gap_mm", w, minimum=0.0),
     "touch_side": lambda v, w: cast(TouchSide, choice(v, TOUCH_SIDES, "touch_side", w)),
-    "power": lambda v, w: cast(Power, choice(v, POWER_CHOICES, "power", w)),
+    "power": lambda v, w: cast(PowerPreset, choice(v, POWER_PRESETS, "power", w)),
     "sensors": _sensors,
     "controller": lambda v, w: strings(v, "controller", w, single=True)[0],
     "noisy_nets": lambda v, w: strings(v, "noisy_nets", w),

@@ -5,16 +5,11 @@ from __future__ import annotations
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Literal
 
+from auditor.model.vocabulary import PowerPreset, TouchSide
 from auditor.rules.context import ThresholdValue
 from auditor.rules.finding import Finding, Severity
 from auditor.sensors.selection import SensorSelection, matches
-
-TOUCH_SIDES = ("front", "back")
-POWER_CHOICES = ("battery", "usb", "mains")
-TouchSide = Literal["front", "back"]
-Power = Literal["battery", "usb", "mains"]
 
 
 @dataclass(frozen=True)
@@ -30,7 +25,9 @@ class Overlay:
     material: str = "acrylic"
 
     def describe(self) -> str:
-        """E.g. ``2.0 mm acrylic (er 2.8)``."""
+        """E.g. ``2.0 mm acrylic (er 2.8)``, or ``none`` for no cover."""
+        if self.thickness_mm == 0.0:
+            return "none"
         name = f"{self.material} " if self.material else ""
         return f"{self.thickness_mm:g} mm {name}(er {self.epsilon_r:g})"
 
@@ -78,7 +75,7 @@ class Config:
     overlay: Overlay = field(default_factory=Overlay)
     air_gap_mm: float = 0.0
     touch_side: TouchSide = "front"
-    power: Power = "battery"
+    power: PowerPreset = "battery"
     selection: SensorSelection = field(default_factory=SensorSelection)
     selection_keys: tuple[str, ...] = ()  # keys the user set under [sensors]
     controller: str = ""

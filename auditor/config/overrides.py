@@ -6,14 +6,24 @@ import math
 from dataclasses import replace
 from typing import cast
 
-from auditor.config.model import POWER_CHOICES, TOUCH_SIDES, Config, Overlay, Power, TouchSide
+from auditor.config.model import Config, Overlay
 from auditor.config.values import overlay_of_material
 from auditor.errors import UsageError
+from auditor.model.vocabulary import POWER_PRESETS, TOUCH_SIDES, PowerPreset, TouchSide
 from auditor.rules.finding import Severity
 
+#: Thinner covers: the finger touches the pad and the graded mesh fails.
+MIN_OVERLAY_MM = 0.001
+#: Thicker covers are far past any product; the mesh would not fit in floating point.
+MAX_OVERLAY_MM = 1000.0
+_SPEC_HELP = "expected MM:MATERIAL, MM:ER or none, e.g. 2:acrylic or 1.5:3.1"
 
-def parse_overlay_spec(text: str) -> Overlay:
-    """``MM:MATERIAL`` or ``MM:ER`` as given to ``--overlay``.
+
+def parse_overlay_spec(text: str, option: str = "--overlay") -> Overlay:
+    """``MM:MATERIAL``, ``MM:ER`` or ``none`` as given to ``--overlay``.
+
+    Every error names the option and the text given. ``none`` is no cover
+    (thickness 0, er 1).
 
     Examples
     --------
@@ -21,25 +31,33 @@ def parse_overlay_spec(text: str) -> Overlay:
     2.8
     >>> parse_overlay_spec("1.5:3.1").describe()
     '1.5 mm (er 3.1)'
+    >>> parse_overlay_spec("none").thickness_mm
+    0.0
     """
+    def fail(message: str) -> UsageError:
+        return UsageError(f"{option} {text!r}: {message}")
+
+    if text.strip().lower() == "none":
+        return Overlay(0.0, 1.0, "")
     thickness_text, sep, what = text.partition(":")
     try:
         thickness_mm = float(thickness_text)
     except ValueError:
-        thickness_mm = -1.0
-    if not sep or not 0 <= thickness_mm < math.inf or not what.strip():
-        raise UsageError(f"--overlay {text!r}: expected MM:MATERIAL or MM:ER, "
-                         "e.g. 2:acrylic or 1.5:3.1")
+        thickness_mm = math.nan
+    if not sep or not math.isfinite(thickness_mm) or not what.strip():
+        raise fail(_SPEC_HELP)
+    if not MIN_OVERLAY_MM <= thickness_mm <= MAX_OVERLAY_MM:
+        raise fail(f"thickness must be from {MIN_OVERLAY_MM:g} mm (1 µm) to "
+                   f"{MAX_OVERLAY_MM:g} mm; for no cover write {option} none")
     try:
         epsilon_r = float(what)
     except ValueError:
         try:
             return overlay_of_material(thickness_mm, what)
         except UsageError as exc:
-            raise UsageError(f"--overlay {text!r}: {exc}") from None
+            raise fail(str(exc)) from None
     if not 1.0 <= epsilon_r < math.inf:
-        raise UsageError(f"--overlay {text!r}: relative permittivity must be a finite number "
-                         "of at least 1")
+        raise fail("relative permittivity must be a finite number of at least 1")
     return Overlay(thickness_mm, epsilon_r, "")
 
 
@@ -60,7 +78,7 @@ def with_overrides(config: Config, *, profile: str | None = None, overlay: str |
     if overlay:
         changes["overlay"] = parse_overlay_spec(overlay)
     if power:
-        changes["power"] = cast(Power, _choice(power, POWER_CHOICES, "--power"))
+        changes["power"] = cast(PowerPreset, _choice(power, POWER_PRESETS, "--power"))
     if touch_side:
         changes["touch_side"] = cast(TouchSide, _choice(touch_side, TOUCH_SIDES, "--touch-side"))
     if fail_on:

@@ -3,16 +3,15 @@
 from __future__ import annotations
 
 import math
-import re
 from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
 from auditor.config.model import Overlay, Waiver
+from auditor.config.toml_positions import header_lines, key_line
 from auditor.errors import ConfigError, UsageError
 from auditor.rules.registry import all_rules
-from auditor.rules.tomlfile import key_line
 
 OVERLAY_KEYS = ("epsilon_r", "material", "thickness_mm")
 WAIVER_KEYS = ("net", "reason", "ref", "rule", "sensor")
@@ -35,11 +34,8 @@ class ConfigText:
     def header_line(self, name: str) -> int | None:
         """Line of a ``[section.name]`` or ``[[section.name]]`` header."""
         full = f"{self.section}.{name}" if self.section else name
-        pattern = re.compile(rf"^\s*\[\[?\s*{re.escape(full)}\s*\]\]?")
-        for number, raw in enumerate(self.text.splitlines(), start=1):
-            if pattern.match(raw):
-                return number
-        return None
+        found = header_lines(self.text, full)
+        return found[0] if found else None
 
     def error(self, message: str, key: str = "") -> ConfigError:
         """A :class:`ConfigError` at ``key``'s line (when found)."""
@@ -124,15 +120,10 @@ def waivers_from(value: Any, where: ConfigText) -> tuple[Waiver, ...]:
     """``[[tool.padaudit.waivers]]`` entries; each needs a rule, a place and a reason."""
     if not isinstance(value, list) or not all(isinstance(v, dict) for v in value):
         raise where.error("waivers must be a list of tables ([[waivers]] entries)", "waivers")
-    lines = _header_lines(where, "waivers")
+    full = f"{where.section}.waivers" if where.section else "waivers"
+    lines = header_lines(where.text, full, array_only=True)
     return tuple(_waiver(entry, where, lines[i] if i < len(lines) else where.line_of("waivers"))
                  for i, entry in enumerate(value))
-
-
-def _header_lines(where: ConfigText, name: str) -> list[int]:
-    full = f"{where.section}.{name}" if where.section else name
-    pattern = re.compile(rf"^\s*\[\[\s*{re.escape(full)}\s*\]\]")
-    return [n for n, raw in enumerate(where.text.splitlines(), start=1) if pattern.match(raw)]
 
 
 def _waiver(entry: dict[str, Any], where: ConfigText, line: int | None) -> Waiver:

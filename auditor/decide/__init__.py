@@ -8,7 +8,13 @@ safety notes a report carries.
 """
 
 from auditor.decide.policy import Decision, Policy, decide, finding_order, mark_baseline
-from auditor.decide.verdict import sensitivity_ranks, sensor_verdict
+from auditor.decide.verdict import (
+    ELECTRODE_VERDICTS,
+    electrode_verdict,
+    sensitivity_ranks,
+    sensor_strength,
+)
 
 __all__ = ["Decision", "Policy", "decide", "finding_order", "mark_baseline",
-           "sensitivity_ranks", "sensor_verdict"]
+           "sensitivity_ranks", "sensor_strength", "ELECTRODE_VERDICTS",
+           "electrode_verdict"]

@@ -21,9 +21,9 @@ from pathlib import Path
 from auditor.decide.policy import baseline_leftovers, mark_baseline
 from auditor.decide.records import DecidedFinding, Report
 from auditor.errors import ConfigError
+from auditor.model.vocabulary import FindingKey
 
 BASELINE_FORMAT = 1
-FindingKey = tuple[str, str, tuple[str, ...], tuple[str, ...]]
 
 
 @dataclasses.dataclass(frozen=True)

@@ -14,12 +14,11 @@ from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field, replace
 
 from auditor.config.model import Waiver
+from auditor.config.profiles import severity_of_level
 from auditor.decide.records import DecidedFinding
+from auditor.model.vocabulary import FindingKey
 from auditor.rules.finding import Finding, Severity
-from auditor.rules.profiles import severity_of_level
 from auditor.rules.registry import RuleSpec
-
-FindingKey = tuple[str, str, tuple[str, ...], tuple[str, ...]]
 
 
 @dataclass(frozen=True)

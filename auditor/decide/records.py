@@ -20,12 +20,15 @@ from auditor.sensors.model import Sensor
 
 @dataclass(frozen=True)
 class SensorResult:
-    """A sensor with its metrics, rank (1 = most sensitive) and verdict."""
+    """A sensor with its metrics, rank (1 = most sensitive) and signal strength.
+
+    The electrode's verdict (worst finding on it) is decided from the report's
+    findings by :func:`auditor.report.verdicts.electrode_verdicts`."""
 
     sensor: Sensor
     metrics: PadMetrics | None
     rank: int
-    verdict: str  # "ok", "weak", "fail", "unsolved"
+    strength: str  # "ok", "weak", "fail", "unsolved"
 
 
 @dataclass(frozen=True)

@@ -26,7 +26,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 from auditor.field.axisym import AxisymModel, Sheet
-from auditor.field.circuit import POWER_PRESETS
+from auditor.field.circuit import DEVICE_TO_EARTH
 from auditor.field.matrix import CapacitanceMatrix
 from auditor.field.mutual import MutualSetup, MutualSolve, solve_mutual
 from auditor.field.pad_model import (
@@ -77,7 +77,7 @@ def _notes(setup: PadSetup, has_ground: bool) -> list[str]:
         notes.append("no modelled ground: device ground taken as a large far-away ground "
                      "(earth), the power preset does not apply")
     else:
-        value, origin = POWER_PRESETS[setup.power]
+        value, origin = DEVICE_TO_EARTH[setup.power]
         notes.append(f"device ground to earth {value:g} pF ({setup.power}; {origin})")
     if setup.gap_mm is not None and setup.ground_fill < 1.0:
         notes.append(f"hatched coplanar ground (fill {setup.ground_fill:g}) as a solid border "

@@ -26,6 +26,7 @@ import numpy as np
 import scipy.constants as const
 
 from auditor.field import fem
+from auditor.field.dielectric import DielectricSlab
 from auditor.field.grading import Breakpoint, graded_line, smallest_feature_mm
 from auditor.field.matrix import CapacitanceMatrix
 
@@ -52,20 +53,11 @@ class Sheet:
 
 
 @dataclass(frozen=True)
-class Layer:
-    """A dielectric slab between two heights, unbounded in radius."""
-
-    z_bottom_mm: float
-    z_top_mm: float
-    er: float
-
-
-@dataclass(frozen=True)
 class AxisymModel:
     """Conductors (by sheets) and dielectric layers; background is vacuum."""
 
     sheets: tuple[Sheet, ...]
-    layers: tuple[Layer, ...] = ()
+    layers: tuple[DielectricSlab, ...] = ()
     #: Sheets that shape the mesh but are not conductors. Giving the baseline
     #: solve the finger as a hint puts both solves on the same mesh, so their
     #: discretisation errors cancel in the difference (small ΔC stays clean).
@@ -123,7 +115,7 @@ def _size_mm(model: AxisymModel) -> tuple[float, float]:
 
 
 def _layer_faces(model: AxisymModel) -> list[float]:
-    return [v for layer in model.layers for v in (layer.z_bottom_mm, layer.z_top_mm)
+    return [v for layer in model.layers for v in (layer.bottom_mm, layer.top_mm)
             if np.isfinite(v)]
 
 
@@ -155,7 +147,7 @@ def _cell_permittivity(model: AxisymModel, mesh: fem.TensorMesh) -> fem.FloatArr
     _, zc = fem.cell_centres(mesh)
     er = np.ones(len(zc))
     for layer in model.layers:
-        er[(zc > layer.z_bottom_mm) & (zc < layer.z_top_mm)] = layer.er
+        er[(zc > layer.bottom_mm) & (zc < layer.top_mm)] = layer.er
     return np.broadcast_to(er[None, :], (len(mesh.x) - 1, len(zc))).copy()
 
 

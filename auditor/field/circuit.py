@@ -22,6 +22,7 @@ from collections.abc import Sequence
 import numpy as np
 
 from auditor.field.matrix import CapacitanceMatrix
+from auditor.model.vocabulary import PowerPreset
 
 
 def with_reference_node(matrix: CapacitanceMatrix, name: str) -> CapacitanceMatrix:
@@ -109,11 +110,10 @@ EARTH = "earth"
 #: 2008) system-level ESD human model, inside the 100-300 pF measured for a
 #: standing person (Jonassen 1998, from memory).
 BODY_TO_EARTH_PF = 150.0
-BODY_TO_EARTH_ORIGIN = "pub: IEC 61000-4-2 Ed. 2.0 (2008) human model, 150 pF"
 
 
 #: Device ground to earth by power preset: (pF, origin).
-POWER_PRESETS: dict[str, tuple[float, str]] = {
+DEVICE_TO_EARTH: dict[PowerPreset, tuple[float, str]] = {
     "battery": (5.0, "common practice, no source: free-space self-capacitance of a "
                      "hand-held device lying on a table (4 pi eps0 x 5 cm = 5.6 pF)"),
     "usb": (100.0, "common practice, no source: ground reaches earth through the host "

@@ -28,6 +28,7 @@ import numpy as np
 import scipy.constants as const
 
 from auditor.field import fem
+from auditor.field.dielectric import DielectricSlab
 from auditor.field.grading import Breakpoint, graded_line
 from auditor.field.matrix import CapacitanceMatrix
 
@@ -57,21 +58,12 @@ class Strip:
 
 
 @dataclass(frozen=True)
-class Slab:
-    """Dielectric between two heights, unbounded in x."""
-
-    y_bottom_mm: float
-    y_top_mm: float
-    er: float
-
-
-@dataclass(frozen=True)
 class CrossSection:
     """Strips, slabs and the name of the reference (ground) conductor."""
 
     strips: tuple[Strip, ...]
     reference: str
-    slabs: tuple[Slab, ...] = ()
+    slabs: tuple[DielectricSlab, ...] = ()
 
     @property
     def conductor_names(self) -> tuple[str, ...]:
@@ -85,7 +77,7 @@ class CrossSection:
 def _extent(section: CrossSection) -> tuple[float, float, float]:
     xs = [abs(v) for s in section.strips for v in (s.x0_mm, s.x1_mm) if not math.isinf(v)]
     ys = [v for s in section.strips for v in (s.y0_mm, s.top_mm)]
-    ys += [v for slab in section.slabs for v in (slab.y_bottom_mm, slab.y_top_mm)
+    ys += [v for slab in section.slabs for v in (slab.bottom_mm, slab.top_mm)
            if math.isfinite(v)]
     size = max(max(xs, default=1.0), 0.5 * (max(ys) - min(ys)), 1e-3)
     return size, min(ys), max(ys)
@@ -124,7 +116,7 @@ def _mesh(section: CrossSection, eta: float, far: float,
         x_points += [Breakpoint(v, True) for v in (s.x0_mm, s.x1_mm) if not math.isinf(v)]
         y_points += [Breakpoint(v, not s.full_width) for v in (s.y0_mm, s.top_mm)]
     for slab in section.slabs:
-        y_points += [Breakpoint(v, False) for v in (slab.y_bottom_mm, slab.y_top_mm)
+        y_points += [Breakpoint(v, False) for v in (slab.bottom_mm, slab.top_mm)
                      if y_low <= v <= y_high and math.isfinite(v)]
     floor_mm = 1e-4 * size
     x_line = graded_line(x_points, eta, floor_mm, size)
@@ -141,7 +133,7 @@ def _single_solve(section: CrossSection, eta: float, far: float,
     _, yc = fem.cell_centres(mesh)
     er = np.ones(len(yc))
     for slab in section.slabs:
-        er[(yc > slab.y_bottom_mm) & (yc < slab.y_top_mm)] = slab.er
+        er[(yc > slab.bottom_mm) & (yc < slab.top_mm)] = slab.er
     eps = np.broadcast_to(er[None, :], (len(mesh.x) - 1, len(yc))).copy()
     stiffness = fem.assemble(mesh, eps)
     nodes = []
@@ -204,14 +196,14 @@ def _trace_geometry(key: TraceSection) -> CrossSection:
     half = 0.5 * key.width_mm
     strips = [Strip("trace", -half, half, 0.0)]
     depth = key.height_below_mm if key.height_below_mm is not None else key.board_mm
-    slabs = [Slab(-depth, 0.0, key.er_below)]
+    slabs = [DielectricSlab(-depth, 0.0, key.er_below)]
     if key.height_below_mm is not None:
         strips.append(Strip("ground", -math.inf, math.inf, -key.height_below_mm))
     if key.height_above_mm is not None:
         strips.append(Strip("ground", -math.inf, math.inf, key.height_above_mm))
-        slabs.append(Slab(0.0, key.height_above_mm, key.er_above))
+        slabs.append(DielectricSlab(0.0, key.height_above_mm, key.er_above))
     elif key.er_above != 1.0:
-        slabs.append(Slab(0.0, math.inf, key.er_above))
+        slabs.append(DielectricSlab(0.0, math.inf, key.er_above))
     if key.coplanar_gap_mm is not None:
         inner = half + key.coplanar_gap_mm
         strips += [Strip("ground", inner, inner + key.pour_width_mm, 0.0),

@@ -60,7 +60,3 @@ class CapacitanceMatrix:
         """Row sum: the conductor's partial capacitance to the reference node."""
         return float(sum(self.values_pf[self.index(name)]))
 
-    def rounded(self, digits: int) -> dict[str, object]:
-        """A JSON-ready mapping with rounded values (deterministic output)."""
-        return {"conductors": list(self.names),
-                "pf": [[round(v, digits) + 0.0 for v in row] for row in self.values_pf]}

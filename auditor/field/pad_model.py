@@ -11,16 +11,16 @@ import math
 from collections.abc import Sequence
 from dataclasses import dataclass
 from functools import lru_cache
-from typing import Literal
 
 from auditor.errors import UsageError
-from auditor.field.axisym import AxisymModel, Layer, Sheet, solve_axisym, solve_axisym_pair
-from auditor.field.circuit import BODY_TO_EARTH_PF, POWER_PRESETS, touch_network
+from auditor.field.axisym import AxisymModel, Sheet, solve_axisym, solve_axisym_pair
+from auditor.field.circuit import BODY_TO_EARTH_PF, DEVICE_TO_EARTH, touch_network
+from auditor.field.dielectric import DielectricSlab
 from auditor.field.matrix import CapacitanceMatrix
 from auditor.field.sheets import coplanar_sheets, plane_sheets, profile_sheets
 from auditor.field.traces import TraceRunSpec
+from auditor.model.vocabulary import PadSide, PowerPreset
 
-PowerPreset = Literal["battery", "usb", "mains"]
 #: Ground ring / plane reach beyond the pad when not given (mm).
 DEFAULT_GROUND_MARGIN_MM = 10.0
 
@@ -79,7 +79,7 @@ class PadSetup:
     plane_fill: float = 1.0
     plane_hatch_pitch_mm: float = 1.5
     board_layers: tuple[BoardLayer, ...] = (BoardLayer(1.6, 4.4),)
-    pad_side: Literal["touch", "far"] = "touch"
+    pad_side: PadSide = "touch"
     overlay_mm: float = 2.0
     overlay_er: float = 2.8
     air_gap_mm: float = 0.0
@@ -151,9 +151,9 @@ def check_setup(setup: PadSetup) -> None:
             and dielectrics(setup)[1] == 0.0):
         raise UsageError("the finger would lie on the bare pad: give an overlay, an air gap "
                          "or a finger height")
-    if setup.power not in POWER_PRESETS:
+    if setup.power not in DEVICE_TO_EARTH:
         raise UsageError(f"unknown power preset {setup.power!r}; choose one of "
-                         f"{', '.join(POWER_PRESETS)}")
+                         f"{', '.join(DEVICE_TO_EARTH)}")
 
 
 def check_profile(label: str, profile: tuple[tuple[float, float], ...]) -> None:
@@ -206,25 +206,25 @@ def left_out_films(setup: PadSetup) -> tuple[int, ...]:
     return tuple(out)
 
 
-def dielectrics(setup: PadSetup) -> tuple[tuple[Layer, ...], float]:
+def dielectrics(setup: PadSetup) -> tuple[tuple[DielectricSlab, ...], float]:
     """Layers and the height of the touch surface above the pad plane
     (thin films far behind the pad left out, :func:`left_out_films`)."""
-    layers: list[Layer] = []
+    layers: list[DielectricSlab] = []
     top = 0.0
     board = setup.board_layers
     if setup.pad_side == "far":
         for layer in reversed(board):
-            layers.append(Layer(top, top + layer.thickness_mm, layer.er))
+            layers.append(DielectricSlab(top, top + layer.thickness_mm, layer.er))
             top += layer.thickness_mm
     else:
         bottom, skipped = 0.0, left_out_films(setup)
         for index, layer in enumerate(board):
             if index not in skipped:
-                layers.append(Layer(bottom - layer.thickness_mm, bottom, layer.er))
+                layers.append(DielectricSlab(bottom - layer.thickness_mm, bottom, layer.er))
             bottom -= layer.thickness_mm
     top += setup.air_gap_mm
     if setup.overlay_mm > 0:
-        layers.append(Layer(top, top + setup.overlay_mm, setup.overlay_er))
+        layers.append(DielectricSlab(top, top + setup.overlay_mm, setup.overlay_er))
     return tuple(layers), top + setup.overlay_mm
 
 
@@ -261,5 +261,5 @@ def reduced_network(matrix: CapacitanceMatrix, keep: Sequence[str], setup: PadSe
     """Circuit step for a field matrix of this model (earth, body, power preset)."""
     ground = "ground" if "ground" in matrix.names else None
     finger = "finger" if with_finger else None
-    return touch_network(matrix, keep, ground, finger, POWER_PRESETS[setup.power][0],
+    return touch_network(matrix, keep, ground, finger, DEVICE_TO_EARTH[setup.power][0],
                          setup.body_to_earth_pf)

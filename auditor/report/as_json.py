@@ -9,38 +9,30 @@ ships beside this module (``schema/report.schema.json``).
 from __future__ import annotations
 
 import json
-import math
 from collections.abc import Iterable
 from importlib import resources
 from typing import TYPE_CHECKING, Any, TextIO
 
 from auditor.decide.records import DecidedFinding, Report, SensorResult
 from auditor.model.results import PadMetrics
+from auditor.report.rounding import significant
+from auditor.report.verdicts import electrode_verdicts
 from auditor.sensors.model import SensePath, Surroundings
 
 if TYPE_CHECKING:
     from auditor.model.results import CouplingTable, PreciseExtras, SegmentScan
 
 #: Bumped when a field is removed or changes meaning; additions keep it.
-SCHEMA_VERSION = 1
-
-
-def rounded(value: float | None) -> float | None:
-    """``value`` to six significant digits; ``None`` for None, NaN or infinity."""
-    if value is None or not math.isfinite(value):
-        return None
-    if value == 0:
-        return 0.0
-    return float(f"{value:.6g}")
+SCHEMA_VERSION = 2
 
 
 def _metrics(m: PadMetrics | None) -> dict[str, Any] | None:
     if m is None:
         return None
     return {
-        "cp_pad_pf": rounded(m.cp_pad_pf), "cp_trace_pf": rounded(m.cp_trace_pf),
-        "cp_total_pf": rounded(m.cp_total_pf), "delta_c_pf": rounded(m.delta_c_pf),
-        "delta_ratio": rounded(m.delta_ratio), "method": m.method,
+        "cp_pad_pf": significant(m.cp_pad_pf), "cp_trace_pf": significant(m.cp_trace_pf),
+        "cp_total_pf": significant(m.cp_total_pf), "delta_c_pf": significant(m.delta_c_pf),
+        "delta_ratio": significant(m.delta_ratio), "method": m.method,
         "method_reason": m.method_reason, "notes": list(m.notes),
         **_quick(m),
     }
@@ -50,36 +42,36 @@ def _quick(m: PadMetrics) -> dict[str, Any]:
     """The quick estimate beside a precise result (absent for quick metrics)."""
     if m.quick_cp_total_pf is None and m.quick_delta_c_pf is None:
         return {}
-    return {"quick": {"cp_pad_pf": rounded(m.quick_cp_pad_pf),
-                      "cp_total_pf": rounded(m.quick_cp_total_pf),
-                      "delta_c_pf": rounded(m.quick_delta_c_pf)}}
+    return {"quick": {"cp_pad_pf": significant(m.quick_cp_pad_pf),
+                      "cp_total_pf": significant(m.quick_cp_total_pf),
+                      "delta_c_pf": significant(m.quick_delta_c_pf)}}
 
 
 def _series(values: Iterable[float]) -> list[float | None]:
-    return [rounded(v) for v in values]
+    return [significant(v) for v in values]
 
 
 def _coupling(table: CouplingTable | None) -> dict[str, Any] | None:
     if table is None:
         return None
-    return {"names": list(table.names), "cell_mm": rounded(table.cell_mm),
+    return {"names": list(table.names), "cell_mm": significant(table.cell_mm),
             "crosstalk_pf": [_series(row) for row in table.crosstalk_pf],
             "fraction_of_cp": [_series(row) for row in table.fraction_of_cp]}
 
 
 def _scan(scan: SegmentScan) -> dict[str, Any]:
-    segments = [{"name": name, "centre_mm": rounded(centre),
+    segments = [{"name": name, "centre_mm": significant(centre),
                  "delta_pf": _series(row[i] for row in scan.delta_pf)}
                 for i, (name, centre) in enumerate(zip(scan.segment_names,
                                                        scan.segment_centres_mm, strict=True))]
     return {
         "group": scan.group, "kind": scan.kind, "segments": segments,
         "positions_mm": _series(scan.positions_mm), "estimated_mm": _series(scan.estimated_mm),
-        "linearity_mm": rounded(scan.linearity_mm),
+        "linearity_mm": significant(scan.linearity_mm),
         "dead_zones_mm": [_series(zone) for zone in scan.dead_zones_mm],
         "reversals_mm": _series(scan.reversals_mm), "monotonic": scan.monotonic,
-        "step_mm": rounded(scan.step_mm), "cell_mm": rounded(scan.cell_mm),
-        "x_mm": rounded(scan.x_mm), "y_mm": rounded(scan.y_mm),
+        "step_mm": significant(scan.step_mm), "cell_mm": significant(scan.cell_mm),
+        "x_mm": significant(scan.x_mm), "y_mm": significant(scan.y_mm),
     }
 
 
@@ -96,9 +88,9 @@ def _path(p: SensePath | None) -> dict[str, Any] | None:
     if p is None:
         return None
     return {
-        "length_mm": rounded(p.length_mm), "vias": p.vias, "layers": list(p.layers),
+        "length_mm": significant(p.length_mm), "vias": p.vias, "layers": list(p.layers),
         "controller_ref": p.controller_ref, "controller_pin": p.controller_pin,
-        "series_ref": p.series_ref, "series_to_pin_mm": rounded(p.series_to_pin_mm),
+        "series_ref": p.series_ref, "series_to_pin_mm": significant(p.series_to_pin_mm),
         "complete": p.complete,
     }
 
@@ -107,22 +99,23 @@ def _surroundings(s: Surroundings | None) -> dict[str, Any] | None:
     if s is None:
         return None
     return {
-        "ground_net": s.ground_net, "min_gap_mm": rounded(s.min_gap_mm),
-        "typical_gap_mm": rounded(s.typical_gap_mm),
-        "ground_fill_ratio": rounded(s.ground_fill_ratio),
+        "ground_net": s.ground_net, "min_gap_mm": significant(s.min_gap_mm),
+        "typical_gap_mm": significant(s.typical_gap_mm),
+        "ground_fill_ratio": significant(s.ground_fill_ratio),
         "nearest_sensor": s.nearest_sensor,
-        "nearest_sensor_mm": rounded(s.nearest_sensor_mm),
-        "ground_area_mm2": rounded(s.ground_area_mm2),
+        "nearest_sensor_mm": significant(s.nearest_sensor_mm),
+        "ground_area_mm2": significant(s.ground_area_mm2),
     }
 
 
-def _sensor(r: SensorResult) -> dict[str, Any]:
+def _sensor(r: SensorResult, verdict: str) -> dict[str, Any]:
     s = r.sensor
     return {
         "name": s.name, "kind": s.kind, "nets": list(s.nets), "refs": list(s.refs),
-        "layer": s.layer, "area_mm2": rounded(s.area_mm2), "x_mm": rounded(s.x_mm),
-        "y_mm": rounded(s.y_mm), "reason": s.reason, "group": s.group, "index": s.index,
-        "exposed": s.exposed, "pasted": s.pasted, "rank": r.rank, "verdict": r.verdict,
+        "layer": s.layer, "area_mm2": significant(s.area_mm2), "x_mm": significant(s.x_mm),
+        "y_mm": significant(s.y_mm), "reason": s.reason, "group": s.group, "index": s.index,
+        "exposed": s.exposed, "pasted": s.pasted, "rank": r.rank, "verdict": verdict,
+        "strength": r.strength,
         "metrics": _metrics(r.metrics), "path": _path(s.path),
         "surroundings": _surroundings(s.surroundings),
     }
@@ -133,9 +126,9 @@ def _finding(d: DecidedFinding, failing: bool) -> dict[str, Any]:
     return {
         "rule_id": f.rule_id, "severity": d.severity.label,
         "default_severity": f.severity.label, "message": f.message,
-        "x_mm": rounded(f.x_mm), "y_mm": rounded(f.y_mm), "layer": f.layer,
+        "x_mm": significant(f.x_mm), "y_mm": significant(f.y_mm), "layer": f.layer,
         "nets": list(f.nets), "refs": list(f.refs), "sensor": f.sensor,
-        "measured": {name: rounded(value) for name, value in f.measured},
+        "measured": {name: significant(value) for name, value in f.measured},
         "waived": d.waived, "in_baseline": d.in_baseline, "failing": failing,
     }
 
@@ -151,6 +144,7 @@ def to_document(report: Report) -> dict[str, Any]:
     """The report as plain JSON-ready data (schema version :data:`SCHEMA_VERSION`)."""
     info = report.info
     failing_ids = {id(d) for d in report.failing}
+    verdicts = electrode_verdicts(report)
     return {
         "schema_version": SCHEMA_VERSION,
         "tool": {"name": "padaudit", "version": info.tool_version},
@@ -158,14 +152,14 @@ def to_document(report: Report) -> dict[str, Any]:
         "run": {
             "profile": info.profile, "overlay": info.overlay, "touch_side": info.touch_side,
             "power": info.power, "fail_on": info.fail_on.label,
-            "max_ratio_loss": rounded(info.max_ratio_loss),
+            "max_ratio_loss": significant(info.max_ratio_loss),
         },
         "summary": {
             "exit_code": report.exit_code, "sensors": len(report.sensors),
             "findings": _count_by_severity(report.findings),
             "failing": len(failing_ids),
         },
-        "sensors": [_sensor(r) for r in report.sensors],
+        "sensors": [_sensor(r, verdicts[r.sensor.name]) for r in report.sensors],
         "findings": [_finding(d, id(d) in failing_ids) for d in report.findings],
         "rules": [
             {"rule_id": r.rule_id, "title": r.title, "rationale": r.rationale, "fix": r.fix,

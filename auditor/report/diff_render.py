@@ -6,15 +6,24 @@ import io
 from typing import Any, TextIO
 
 from rich.console import Console
-from rich.table import Table
 from rich.text import Text
 
 from auditor.decide.diff import PadChange, ReportDiff
 from auditor.decide.records import DecidedFinding
-from auditor.report.as_json import dumps, rounded
+from auditor.report.as_json import dumps
+from auditor.report.rounding import significant
+from auditor.report.text_fit import (
+    Cell,
+    Column,
+    fitted_table,
+    print_blocks,
+    print_note,
+    stream_width,
+)
 
 DIFF_FORMATS: tuple[str, ...] = ("text", "json", "markdown")
 DIFF_SCHEMA_VERSION = 1
+_FILE_WIDTH = 120  # columns when writing to a file or pipe
 _FIELDS = (("cp_total_pf", "Cp total pF"), ("delta_c_pf", "ΔC pF"), ("delta_ratio", "ΔC/Cp"))
 
 
@@ -47,28 +56,47 @@ def _finding_line(d: DecidedFinding) -> str:
     return f"{d.severity.label} {f.rule_id}{who}: {f.message}"
 
 
+#: Short headers for narrow terminals (units then in the note under the table).
+_SHORT = {"Cp total pF": "Cp", "ΔC pF": "ΔC"}
+
+
+def _pad_table(console: Console, diff: ReportDiff) -> None:
+    """Old → new per pad and field, as a table when it fits, else one block per pad."""
+    columns = [Column("sensor")]
+    for _, title in _FIELDS:
+        columns += [Column(title, _SHORT.get(title, title)), Column("", justify="right")]
+    columns.append(Column("note"))
+    rows: list[list[Cell]] = []
+    for change in diff.pads:
+        cells: list[Cell] = [change.name]
+        for field, _ in _FIELDS:
+            cells += [f"{_value(change, field, 'old')} → {_value(change, field, 'new')}",
+                      _pct(change.change_pct(field))]
+        flag = _flag(change, diff)
+        rows.append(cells + [Text(flag, style="bold red" if change in diff.losing else "dim")])
+    table = fitted_table(console, columns, rows)
+    if table is not None:
+        console.print(table)
+        if table.columns[1].header != columns[1].header:
+            print_note(console, "Cp total and ΔC in pF")
+        return
+    block_columns = [Column("sensor")] + [Column(t) for _, t in _FIELDS] + [Column("note")]
+    print_blocks(console, block_columns,
+                 [[r[0], *(f"{r[i]} ({r[i + 1]})" for i in (1, 3, 5)), r[7]] for r in rows])
+
+
 def render_diff_text(diff: ReportDiff, stream: TextIO, colour: bool,
-                     width: int | None = 120) -> None:
-    """Write the comparison for people."""
+                     width: int | None = None) -> None:
+    """Write the comparison for people, ``width`` columns wide (``None``:
+    the terminal's width, or 120 when not writing to one)."""
+    if width is None:
+        width = stream_width(stream, _FILE_WIDTH)
     buffer = io.StringIO()
     console = Console(file=buffer, force_terminal=colour, no_color=not colour,
                       color_system="standard" if colour else None, highlight=False,
                       emoji=False, markup=False, width=width)
     console.print(Text(f"padaudit diff: {diff.old_label} → {diff.new_label}", style="bold"))
-    table = Table(box=None, pad_edge=False, header_style="bold", show_edge=False)
-    table.add_column("sensor", no_wrap=True)
-    for _, title in _FIELDS:
-        table.add_column(title, no_wrap=True)
-        table.add_column("", justify="right", no_wrap=True)
-    table.add_column("note", no_wrap=True)
-    for change in diff.pads:
-        cells = [change.name]
-        for field, _ in _FIELDS:
-            cells += [f"{_value(change, field, 'old')} → {_value(change, field, 'new')}",
-                      _pct(change.change_pct(field))]
-        flag = _flag(change, diff)
-        table.add_row(*cells, Text(flag, style="bold red" if change in diff.losing else "dim"))
-    console.print(table)
+    _pad_table(console, diff)
     for title, items in (("New findings", diff.new_findings),
                          ("Fixed findings", diff.fixed_findings)):
         console.print()
@@ -94,12 +122,12 @@ def render_diff_text(diff: ReportDiff, stream: TextIO, colour: bool,
 
 def _pad_doc(change: PadChange) -> dict[str, Any]:
     doc: dict[str, Any] = {"name": change.name, "status": change.status,
-                           "ratio_loss": rounded(change.ratio_loss)}
+                           "ratio_loss": significant(change.ratio_loss)}
     for field, _ in _FIELDS + (("cp_pad_pf", ""), ("cp_trace_pf", "")):
         doc[field] = {
-            "old": rounded(getattr(change.old, field)) if change.old else None,
-            "new": rounded(getattr(change.new, field)) if change.new else None,
-            "change_pct": rounded(change.change_pct(field)),
+            "old": significant(getattr(change.old, field)) if change.old else None,
+            "new": significant(getattr(change.new, field)) if change.new else None,
+            "change_pct": significant(change.change_pct(field)),
         }
     return doc
 
@@ -115,7 +143,7 @@ def diff_document(diff: ReportDiff) -> dict[str, Any]:
     """The comparison as JSON-ready data."""
     return {
         "diff_schema_version": DIFF_SCHEMA_VERSION, "old": diff.old_label, "new": diff.new_label,
-        "max_ratio_loss": rounded(diff.max_ratio_loss), "fail_on": diff.fail_on.label,
+        "max_ratio_loss": significant(diff.max_ratio_loss), "fail_on": diff.fail_on.label,
         "pads": [_pad_doc(p) for p in diff.pads],
         "losing": [p.name for p in diff.losing],
         "not_compared": [p.name for p in diff.pads if p.status == "unsolved"],
@@ -147,6 +175,6 @@ def render_diff(diff: ReportDiff, fmt: str, stream: TextIO, colour: bool = False
     elif fmt == "markdown":
         render_diff_markdown(diff, stream)
     elif fmt == "text":
-        render_diff_text(diff, stream, colour, width=None if colour else 120)
+        render_diff_text(diff, stream, colour)
     else:
         raise ValueError(f"unknown format {fmt!r}; choose one of: {', '.join(DIFF_FORMATS)}")

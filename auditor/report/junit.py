@@ -12,6 +12,7 @@ import xml.etree.ElementTree as ET
 from typing import TextIO
 
 from auditor.decide.records import DecidedFinding, Report, SensorResult
+from auditor.report.verdicts import electrode_verdicts
 
 
 def _describe(d: DecidedFinding) -> str:
@@ -38,11 +39,12 @@ def _case(suite: ET.Element, classname: str, name: str, failing: list[DecidedFin
         ET.SubElement(case, "system-out").text = "\n".join(lines)
 
 
-def _sensor_out(result: SensorResult) -> str:
+def _sensor_out(result: SensorResult, verdict: str) -> str:
     m = result.metrics
     if m is None:
-        return f"verdict {result.verdict}: no field solve"
-    return (f"verdict {result.verdict}, rank {result.rank}: Cp {m.cp_total_pf:.3f} pF "
+        return f"verdict {verdict}, signal {result.strength}: no field solve"
+    return (f"verdict {verdict}, signal {result.strength}, rank {result.rank}: "
+            f"Cp {m.cp_total_pf:.3f} pF "
             f"(pad {m.cp_pad_pf:.3f}, trace {m.cp_trace_pf:.3f}), dC {m.delta_c_pf:.4f} pF, "
             f"ratio {m.delta_ratio * 100:.2f} %")
 
@@ -68,11 +70,12 @@ def to_junit(report: Report) -> ET.Element:
     failing_ids = {id(d) for d in report.failing}
     root = ET.Element("testsuites", {"name": f"padaudit {report.info.board_path}"})
     sensors = _suite(root, "padaudit.electrodes")
+    verdicts = electrode_verdicts(report)
     for r in report.sensors:
         mine = [d for d in report.findings if d.finding.sensor == r.sensor.name]
         _case(sensors, "padaudit.electrode", r.sensor.name,
               [d for d in mine if id(d) in failing_ids],
-              [d for d in mine if id(d) not in failing_ids], note=_sensor_out(r))
+              [d for d in mine if id(d) not in failing_ids], note=_sensor_out(r, verdicts[r.sensor.name]))
     rules = _suite(root, "padaudit.rules")
     crashed = dict(report.rule_errors)
     rule_ids = sorted({r.rule_id for r in report.rules}

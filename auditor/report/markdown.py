@@ -8,6 +8,7 @@ from typing import TextIO
 from auditor.decide.records import DecidedFinding, Report
 from auditor.report.text import ordered_sensors
 from auditor.report.text_precise import strongest_pairs
+from auditor.report.verdicts import electrode_verdicts
 
 #: Coupled pairs named in the summary line.
 TOP_PAIRS = 3
@@ -62,15 +63,16 @@ def _finding_line(d: DecidedFinding, fixes: dict[str, str]) -> str:
 
 
 def _table(report: Report, order: str) -> list[str]:
-    lines = ["| rank | sensor | kind | Cp total pF | ΔC pF | ΔC/Cp | verdict |",
-             "|---:|---|---|---:|---:|---:|---|"]
+    lines = ["| rank | sensor | kind | Cp total pF | ΔC pF | ΔC/Cp | signal | verdict |",
+             "|---:|---|---|---:|---:|---:|---|---|"]
+    verdicts = electrode_verdicts(report)
     for r in ordered_sensors(report.sensors, order):
         m = r.metrics
         nums = ("–", "–", "–") if m is None else (
             f"{m.cp_total_pf:.2f}", f"{m.delta_c_pf:.3f}", f"{m.delta_ratio * 100:.2f} %")
         rank = str(r.rank) if m else "–"
         lines.append(f"| {rank} | {cell(r.sensor.name)} | {r.sensor.kind} | "
-                     f"{' | '.join(nums)} | {r.verdict} |")
+                     f"{' | '.join(nums)} | {r.strength} | {verdicts[r.sensor.name]} |")
     return lines
 
 

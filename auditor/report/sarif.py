@@ -14,7 +14,8 @@ from pathlib import Path
 from typing import Any, TextIO
 
 from auditor.decide.records import DecidedFinding, Report, RuleInfo
-from auditor.report.as_json import dumps, rounded
+from auditor.report.as_json import dumps
+from auditor.report.rounding import significant
 from auditor.rules.finding import Severity
 
 SARIF_VERSION = "2.1.0"
@@ -90,9 +91,9 @@ def _result(d: DecidedFinding, index: int, uri: str, failing: bool) -> dict[str,
         "partialFingerprints": {"padauditFindingKey/v1": fingerprint(d)},
         "baselineState": "unchanged" if d.in_baseline else "new",
         "properties": {
-            "x_mm": rounded(f.x_mm), "y_mm": rounded(f.y_mm), "layer": f.layer,
+            "x_mm": significant(f.x_mm), "y_mm": significant(f.y_mm), "layer": f.layer,
             "nets": list(f.nets), "refs": list(f.refs), "sensor": f.sensor,
-            "measured": {name: rounded(value) for name, value in f.measured},
+            "measured": {name: significant(value) for name, value in f.measured},
             "default_severity": f.severity.label, "failing": failing,
         },
     }

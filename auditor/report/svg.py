@@ -4,11 +4,13 @@ Board coordinates are used as SVG user units (mm; both have Y down), so the
 picture matches KiCad's view. Layers: the outline, every copper layer's
 copper in a faint colour, electrodes filled by sensitivity (ΔC/Cp relative to
 the board's most sensitive pad, on the viridis scale, whose stops are
-published with matplotlib), the measured ground gap as a dashed ring,
-numbered finding markers and a legend panel on the right; with ``--precise``
-the slider and wheel response plots under the board
-(:mod:`auditor.report.svg_plot`). Shapes come from
-shapely's own ``.svg()`` output.
+published with matplotlib), the measured ground gap as a dashed ring, the
+copper each finding is about (:mod:`auditor.report.svg_focus`), numbered
+finding markers, electrode labels placed clear of markers and of each other
+(:mod:`auditor.report.svg_labels`) and a legend on the right that starts with
+the run's verdict; with ``--precise`` the slider and wheel response plots under
+the board (:mod:`auditor.report.svg_plot`). Shapes are compact paths rounded
+to 0.01 mm (:mod:`auditor.report.svg_shapes`).
 """
 
 from __future__ import annotations
@@ -20,14 +22,16 @@ from shapely.geometry.base import BaseGeometry
 from shapely.ops import unary_union
 
 from auditor.decide.records import Report, SensorResult
+from auditor.report.svg_focus import HATCH_ID, focus_marks, hatch_pattern
+from auditor.report.svg_labels import EM_WIDTH, Label, place_labels
 from auditor.report.svg_marks import (
-    LEGEND_PLACES,
     SEVERITY_COLOURS,
     legend_lines,
     marker_elements,
     spots,
 )
 from auditor.report.svg_plot import plots_height, scan_plots
+from auditor.report.svg_shapes import number, shape_path
 from auditor.rules.finding import Severity
 
 # viridis at 0, .25, .5, .75, 1 (matplotlib's published colormap, CC0).
@@ -47,8 +51,7 @@ def sensitivity_colour(fraction: float) -> str:
     return "#" + "".join(f"{c:02x}" for c in mix)
 
 
-def _n(value: float) -> str:
-    return f"{value:.3f}".rstrip("0").rstrip(".")
+_n = number
 
 
 def _text(x: float, y: float, size: float, content: str, **attrs: str) -> str:
@@ -76,7 +79,8 @@ def _copper(report: Report, thin: float) -> list[str]:
         shapes = [it.geometry for it in board.items_on(layer)]
         if shapes:
             colour = _LAYER_COLOURS[i % len(_LAYER_COLOURS)]
-            out.append(unary_union(shapes).svg(thin, colour, 0.18))
+            out.append(shape_path(unary_union(shapes), fill=colour, stroke=colour,
+                                  stroke_width=thin, opacity=0.18, data_layer=layer))
     out.append("</g>")
     return out
 
@@ -86,7 +90,8 @@ def _outline(report: Report, stroke: float) -> list[str]:
     if board is None or board.outline.polygon is None:
         return []
     lines = [board.outline.polygon.boundary, *(c.boundary for c in board.outline.cutouts)]
-    return ['<g id="outline">', *(g.svg(stroke, "#222222", 1.0) for g in lines), "</g>"]
+    return ['<g id="outline">', *(shape_path(g, stroke="#222222", stroke_width=stroke)
+                                  for g in lines), "</g>"]
 
 
 def _scale_group(r: SensorResult) -> str:
@@ -105,45 +110,37 @@ def best_ratios(report: Report) -> dict[str, float]:
     return best
 
 
-def _electrodes(report: Report, thin: float, font: float) -> list[str]:
+def _electrodes(report: Report, thin: float) -> list[str]:
     bests = best_ratios(report)
-    shapes, gaps, labels = ['<g id="electrodes">'], ['<g id="ground-gaps">'], ['<g id="labels">']
+    shapes, gaps = ['<g id="electrodes">'], ['<g id="ground-gaps">']
     for r in report.sensors:
         geometry: BaseGeometry = r.sensor.geometry
         best = bests.get(_scale_group(r), 0.0)
         fraction = r.metrics.delta_ratio / best if r.metrics and best > 0 else 0.0
         colour = sensitivity_colour(fraction) if r.metrics else _UNSOLVED
-        shapes.append(geometry.svg(thin, colour, 0.9))
+        shapes.append(shape_path(geometry, fill=colour, stroke="#333333", stroke_width=thin,
+                                 opacity=0.9, data_sensor=r.sensor.name))
         gaps += _gap_ring(r, thin)
-        ratio = f"{r.metrics.delta_ratio * 100:.2f} %" if r.metrics else "unsolved"
-        for x, y, line in _label_lines(r, font, ratio):
-            labels.append(_text(x, y, font * 0.8, line,
-                                text_anchor="middle", dominant_baseline="middle",
-                                fill="#ffffff", stroke="#000000",
-                                stroke_width=_n(font * 0.12), paint_order="stroke"))
-    return shapes + ["</g>"] + gaps + ["</g>"] + labels + ["</g>"]
+    return shapes + ["</g>"] + gaps + ["</g>"]
 
 
-def _label_lines(r: SensorResult, font: float, ratio: str) -> list[tuple[float, float, str]]:
-    """Name and ratio inside a pad big enough to hold them, else above and below
-    it, so that a finding marker at the centre does not cover them."""
-    x, y = _label_point(r)
-    x0, y0, x1, y1 = r.sensor.geometry.bounds
-    if y1 - y0 > 5 * font and x1 - x0 > 5 * font:
-        # above the centre, where a finding's marker usually sits
-        return [(x, y - 1.9 * font, r.sensor.name), (x, y - 1.0 * font, ratio)]
-    return [(x, y0 - 0.4 * font, r.sensor.name), (x, y1 + 0.9 * font, ratio)]
-
-
-def _label_point(r: SensorResult) -> tuple[float, float]:
-    """The sensor's centre, or a point on its copper when the centre is not
-    (rings, loops)."""
-    geometry = r.sensor.geometry
-    centre = geometry.centroid
-    if geometry.is_empty or geometry.buffer(1e-6).contains(centre):
-        return r.sensor.x_mm, r.sensor.y_mm
-    inside = geometry.representative_point()
-    return inside.x, inside.y
+def _labels(report: Report, font: float, frame: tuple[float, float, float, float]
+            ) -> list[str]:
+    """Name and ratio of every electrode, placed clear of markers and of
+    each other (:mod:`auditor.report.svg_labels`)."""
+    radius = font * 0.75  # a marker's radius and its stroke
+    markers = [(s.x_mm - radius, s.y_mm - radius, s.x_mm + radius, s.y_mm + radius)
+               for s in spots(report.findings) if s.x_mm is not None and s.y_mm is not None]
+    labels = [Label((r.sensor.name, f"{r.metrics.delta_ratio * 100:.2f} %" if r.metrics
+                     else "unsolved"), r.sensor.geometry, font * 0.8)
+              for r in report.sensors]
+    out = ['<g id="labels">']
+    for placed in place_labels(labels, markers, radius, frame):
+        for x, y, line in placed.lines:
+            out.append(_text(x, y, placed.label.size, line, text_anchor="middle",
+                             dominant_baseline="middle", fill="#ffffff", stroke="#000000",
+                             stroke_width=_n(font * 0.12), paint_order="stroke"))
+    return out + ["</g>"]
 
 
 def _gap_ring(r: SensorResult, thin: float) -> list[str]:
@@ -151,53 +148,82 @@ def _gap_ring(r: SensorResult, thin: float) -> list[str]:
     if around is None or around.min_gap_mm is None or around.min_gap_mm <= 0:
         return []
     ring = r.sensor.geometry.buffer(around.min_gap_mm).boundary
-    svg = ring.svg(thin * 1.5, "#e67e22", 1.0)
-    return [svg.replace("<polyline ", '<polyline stroke-dasharray="0.6 0.4" ')]
+    return [shape_path(ring, stroke="#e67e22", stroke_width=thin * 1.5,
+                       stroke_dasharray="0.6 0.4")]
 
 
-def _legend(report: Report, x0: float, y0: float, font: float) -> list[str]:
-    line = font * 1.5
-    out = ['<g id="legend" font-family="sans-serif">',
-           _text(x0, y0 + line, font * 1.1, Path(report.info.board_path).name, font_weight="bold"),
-           _text(x0, y0 + 2 * line, font * 0.8, f"profile {report.info.profile} · "
-                 f"power {report.info.power}", fill="#555555")]
-    y = y0 + 3.5 * line
-    bests = best_ratios(report)
-    out.append(_text(x0, y, font * 0.9, "electrode ΔC/Cp, share of the best touch pad"))
-    if "proximity" in bests and "touch" in bests:  # one line would run off the picture
-        out.append(_text(x0, y + 0.75 * line, font * 0.75, "(proximity on its own scale)",
-                         fill="#555555"))
-        y += 0.75 * line
-    steps = 10
-    width = font * 14 / steps
-    for i in range(steps):
-        out.append(f'<rect x="{_n(x0 + i * width)}" y="{_n(y + 0.4 * line)}" '
-                   f'width="{_n(width)}" height="{_n(font)}" '
-                   f'fill="{sensitivity_colour(i / (steps - 1))}"/>')
-    best = bests.get("touch", bests.get("proximity", 0.0))
-    out.append(_text(x0, y + 1.9 * line, font * 0.75, "0"))
-    top = f"{best * 100:.2f} %" if best > 0 else "no pad solved"
-    out.append(_text(x0 + steps * width, y + 1.9 * line, font * 0.75, top, text_anchor="end"))
-    y += 3 * line
+def verdict_line(report: Report) -> tuple[str, str]:
+    """``(text, colour)`` of the picture's verdict, as the run decided it."""
+    fail_on = report.info.fail_on.label
+    if report.exit_code == 0:
+        return f"PASS: nothing at or above {fail_on}", "#2e7d32"
+    failing = len(report.failing)
+    why = [f"{failing} finding{'s' if failing != 1 else ''} at or above {fail_on}"]
+    if report.rule_errors:
+        why.append(f"{len(report.rule_errors)} rule(s) crashed")
+    return "FAIL: " + "; ".join(why), SEVERITY_COLOURS[Severity.ERROR]
+
+
+def _legend_keys(report: Report) -> list[tuple[str, str]]:
     keys = [("#9e9e9e", "unsolved electrode"), ("#e67e22", "ground gap (dashed ring)")]
     if report.board is not None:
         keys += [(_LAYER_COLOURS[i % len(_LAYER_COLOURS)], f"copper {layer}")
                  for i, layer in enumerate(report.board.copper_layers)]
-    keys += [(_SEVERITY_COLOURS[s], f"finding: {s.label}") for s in sorted(Severity, reverse=True)]
-    keys += [("#ffffff", "hollow marker: waived or in the baseline")]
-    for colour, label in keys:
-        out.append(f'<rect x="{_n(x0)}" y="{_n(y - font * 0.8)}" width="{_n(font)}" '
-                   f'height="{_n(font)}" fill="{colour}" stroke="#777777" '
-                   f'stroke-width="{_n(font * 0.05)}"/>')
-        out.append(_text(x0 + font * 1.5, y, font * 0.8, label))
-        y += line
-    y += line * 0.5
-    places = spots(report.findings)
-    out.append(_text(x0, y, font * 0.9, f"findings ({len(report.findings)}) by place"))
-    for colour, caption in legend_lines(places):
-        y += line
-        out.append(_text(x0, y, font * 0.75, caption, fill=colour))
-    return out + ["</g>"]
+        keys += [(f"url(#{HATCH_ID})", "other net at fault (hatched)")]
+    keys += [(SEVERITY_COLOURS[s], f"finding: {s.label} (and the copper at fault)")
+             for s in sorted(Severity, reverse=True)]
+    return keys + [("#ffffff", "hollow marker: waived or in the baseline")]
+
+
+class _Column:
+    """The legend's lines, top to bottom; remembers its widest line."""
+
+    def __init__(self, x0: float, y0: float, font: float) -> None:
+        self.x0, self.y, self.font, self.width = x0, y0, font, 0.0
+        self.out: list[str] = ['<g id="legend" font-family="sans-serif">']
+
+    def line(self, text: str, size: float, step: float = 1.5, indent: float = 0.0,
+             **attrs: str) -> None:
+        self.y += step * self.font
+        self.out.append(_text(self.x0 + indent, self.y, size, text, **attrs))
+        self.width = max(self.width, indent + len(text) * size * EM_WIDTH)
+
+
+def _legend(report: Report, x0: float, y0: float, font: float) -> tuple[list[str], float, float]:
+    """The legend's elements, its bottom and its width."""
+    col = _Column(x0, y0, font)
+    col.line(Path(report.info.board_path).name, font * 1.1, font_weight="bold")
+    verdict, colour = verdict_line(report)
+    col.line(verdict, font * 0.9, fill=colour, font_weight="bold")
+    col.line(f"profile {report.info.profile} · power {report.info.power}", font * 0.8,
+             fill="#555555")
+    bests = best_ratios(report)
+    col.line("electrode ΔC/Cp, share of the best touch pad", font * 0.9, step=2.0)
+    if "proximity" in bests and "touch" in bests:
+        col.line("(proximity on its own scale)", font * 0.75, step=1.1, fill="#555555")
+    steps, y = 10, col.y
+    width = font * 14 / steps
+    for i in range(steps):
+        col.out.append(f'<rect x="{_n(x0 + i * width)}" y="{_n(y + 0.6 * font)}" '
+                       f'width="{_n(width)}" height="{_n(font)}" '
+                       f'fill="{sensitivity_colour(i / (steps - 1))}"/>')
+    best = bests.get("touch", bests.get("proximity", 0.0))
+    col.line("0", font * 0.75, step=2.85)
+    col.out.append(_text(x0 + steps * width, col.y, font * 0.75,
+                         f"{best * 100:.2f} %" if best > 0 else "no pad solved",
+                         text_anchor="end"))
+    col.y += 0.5 * font
+    for key_colour, label in _legend_keys(report):
+        col.out.append(f'<rect x="{_n(x0)}" y="{_n(col.y + 1.5 * font - font * 0.8)}" '
+                       f'width="{_n(font)}" height="{_n(font)}" fill="{key_colour}" '
+                       f'stroke="#777777" stroke-width="{_n(font * 0.05)}"/>')
+        col.line(label, font * 0.8, indent=font * 1.5)
+    col.line(f"findings ({len(report.findings)}) by place", font * 0.9, step=2.25)
+    for line_colour, caption in legend_lines(spots(report.findings)):
+        continued = caption.startswith("\u00a0")  # a wrapped caption's next line
+        col.line(caption.lstrip("\u00a0"), font * 0.75, step=1.1 if continued else 1.5,
+                 indent=font * 1.5 if continued else 0.0, fill=line_colour)
+    return col.out + ["</g>"], col.y + font, col.width
 
 
 def to_svg(report: Report) -> str:
@@ -205,20 +231,23 @@ def to_svg(report: Report) -> str:
     x0, y0, x1, y1 = _extent(report)
     size = max(x1 - x0, y1 - y0, 1.0)
     font, margin, thin = size / 45, size / 30, size / 3000
-    legend_w = font * 24
-    rows = 18 + min(len(spots(report.findings)), LEGEND_PLACES + 1)
+    legend, legend_bottom, legend_w = _legend(report, x1 + 2 * margin, y0, font)
     scans = report.precise.scans if report.precise else ()
     plots_h = plots_height(scans, x1 - x0, font)
     plots_gap = margin if scans else 0.0
     height = max(y1 - y0 + 2 * margin + 2 * plots_gap + plots_h,
-                 rows * font * 1.5 + 2 * margin)
+                 legend_bottom - y0 + 2 * margin)
     vx, vy, vw = x0 - margin, y0 - margin, x1 - x0 + 3 * margin + legend_w
-    body = [f'<rect x="{_n(vx)}" y="{_n(vy)}" width="{_n(vw)}" height="{_n(height)}" '
+    title = f"padaudit: {Path(report.info.board_path).name}: {verdict_line(report)[0]}"
+    body = [f"<title>{escape(title)}</title>", hatch_pattern(font * 0.35),
+            f'<rect x="{_n(vx)}" y="{_n(vy)}" width="{_n(vw)}" height="{_n(height)}" '
             'fill="#ffffff"/>',
             *_copper(report, thin), *_outline(report, size / 800),
-            *_electrodes(report, thin, font), *marker_elements(spots(report.findings), font),
-            *_legend(report, x1 + 2 * margin, y0, font),
-            *scan_plots(scans, x0, y1 + margin + plots_gap, x1 - x0, font)]
+            *_electrodes(report, thin),
+            *focus_marks(report.board, report.findings, report.sensors, size / 1500),
+            *marker_elements(spots(report.findings), font),
+            *_labels(report, font, (vx, vy, x1 + margin, y1 + margin)),
+            *legend, *scan_plots(scans, x0, y1 + margin + plots_gap, x1 - x0, font)]
     return ('<?xml version="1.0" encoding="UTF-8"?>\n'
             f'<svg xmlns="http://www.w3.org/2000/svg" viewBox="{_n(vx)} {_n(vy)} {_n(vw)} '
             f'{_n(height)}" width="{_n(vw * 10)}" height="{_n(height * 10)}" '

@@ -8,15 +8,18 @@ place once with its rules.
 
 from __future__ import annotations
 
+import textwrap
 from collections import Counter
 from dataclasses import dataclass
 
 from auditor.decide.records import DecidedFinding
+from auditor.report.svg_shapes import number
 from auditor.rules.finding import Severity
 
 SEVERITY_COLOURS = {Severity.ERROR: "#d62728", Severity.WARNING: "#ff7f0e",
                     Severity.INFO: "#1f77b4"}
 LEGEND_PLACES = 30  # more than this and the legend says how many were left out
+CAPTION_CHARS = 50  # a longer caption wraps onto more lines, never cut
 
 
 @dataclass(frozen=True)
@@ -38,13 +41,13 @@ class Spot:
         """True when at least one finding here may fail the run."""
         return any(d.counts_for_gate for d in self.findings)
 
-    def caption(self, max_chars: int = 48) -> str:
-        """``SENSOR: rule-a, rule-b ×2`` shortened to ``max_chars``."""
+    def caption(self) -> str:
+        """``SENSOR: rule-a, rule-b ×2``, whole (the legend wraps it)."""
         sensors = sorted({d.finding.sensor for d in self.findings if d.finding.sensor})
         counts = Counter(d.finding.rule_id for d in self.findings)
-        rules = ", ".join(r + (f" ×{n}" if n > 1 else "") for r, n in counts.items())
-        text = f"{', '.join(sensors) or 'board'}: {rules}"
-        return text if len(text) <= max_chars else text[: max_chars - 1] + "…"
+        # a no-break space keeps "×2" with its rule when the legend wraps
+        rules = ", ".join(r + (f"\u00a0×{n}" if n > 1 else "") for r, n in counts.items())
+        return f"{', '.join(sensors) or 'board'}: {rules}"
 
 
 def spots(findings: tuple[DecidedFinding, ...]) -> list[Spot]:
@@ -64,8 +67,7 @@ def spots(findings: tuple[DecidedFinding, ...]) -> list[Spot]:
     return out
 
 
-def _n(value: float) -> str:
-    return f"{value:.3f}".rstrip("0").rstrip(".")
+_n = number
 
 
 def marker_elements(places: list[Spot], font: float) -> list[str]:
@@ -87,8 +89,14 @@ def marker_elements(places: list[Spot], font: float) -> list[str]:
 
 def legend_lines(places: list[Spot]) -> list[tuple[str, str]]:
     """``(colour, text)`` lines for the legend, at most :data:`LEGEND_PLACES`."""
-    lines = [(SEVERITY_COLOURS[s.worst], f"{s.number or '–'}  {s.caption()}")
-             for s in places[:LEGEND_PLACES]]
+    lines = []
+    for spot in places[:LEGEND_PLACES]:
+        wrapped = textwrap.wrap(spot.caption(), CAPTION_CHARS, break_long_words=False,
+                                break_on_hyphens=False,
+                                subsequent_indent="\u00a0" * 4)  # SVG folds plain spaces
+        head = f"{spot.number or '–'}  "
+        lines += [(SEVERITY_COLOURS[spot.worst], (head if i == 0 else "") + text)
+                  for i, text in enumerate(wrapped)]
     if len(places) > LEGEND_PLACES:
         lines.append(("#555555", f"… and {len(places) - LEGEND_PLACES} more places "
                                  "(see the text report)"))

@@ -7,9 +7,13 @@ sit in a row under the board, in the picture's own units (mm of board).
 
 from __future__ import annotations
 
+import textwrap
 from collections.abc import Callable
 from html import escape
 from typing import TYPE_CHECKING
+
+from auditor.report.svg_labels import EM_WIDTH
+from auditor.report.svg_shapes import number
 
 if TYPE_CHECKING:
     from auditor.model.results import SegmentScan
@@ -22,8 +26,7 @@ PLOT_WIDTH_FONTS = 26.0
 PLOT_HEIGHT_FONTS = 14.0
 
 
-def _n(value: float) -> str:
-    return f"{value:.3f}".rstrip("0").rstrip(".")
+_n = number
 
 
 def _text(x: float, y: float, size: float, content: str, **attrs: str) -> str:
@@ -66,7 +69,11 @@ def scan_plot(scan: SegmentScan, x: float, y: float, width: float, height: float
     per segment, segment names at their peaks."""
     small = font * 0.7
     left, right = x + font * 3.2, x + width - font * 1.2
-    top, bottom = y + font * 2.6, y + height - font * 2.6
+    # The summary wraps inside the plot's box; the axes move down under it.
+    summary = textwrap.wrap(_summary(scan), max(20, int((width - font) / (small * EM_WIDTH))),
+                            break_long_words=False)
+    top = y + font * (2.6 + 0.8 * (len(summary) - 1))
+    bottom = y + height - font * 2.6
     positions = scan.positions_mm
     first, last = (positions[0], positions[-1]) if positions else (0.0, 1.0)
     span = (last - first) or 1.0
@@ -85,7 +92,8 @@ def scan_plot(scan: SegmentScan, x: float, y: float, width: float, height: float
            f'stroke-width="{_n(font * 0.04)}"/>',
            _text(x + font * 0.5, y + font * 1.2, font * 0.85,
                  f"{scan.kind} {scan.group}: ΔC against finger position", font_weight="bold"),
-           _text(x + font * 0.5, y + font * 2.1, small, _summary(scan), fill="#555555")]
+           *(_text(x + font * 0.5, y + font * (2.1 + 0.8 * i), small, line, fill="#555555")
+             for i, line in enumerate(summary))]
     out += _shading(scan, px, top, bottom, font)
     out += _axes(left, right, top, bottom, first, last, ceiling, font)
     for i, name in enumerate(scan.segment_names):

@@ -17,50 +17,15 @@ from rich.console import Console
 from rich.table import Table
 from rich.text import Text
 
-from auditor.decide.records import DecidedFinding, Report, RuleInfo, SensorResult
+from auditor.decide.records import DecidedFinding, Report, RuleInfo
+from auditor.report.text_electrodes import ORDERS, ordered_sensors, ratio_bar, sensor_table
+from auditor.report.text_fit import stream_width
 from auditor.report.text_precise import render_precise_sections
 from auditor.rules.finding import Severity
-from auditor.sensors.model import name_order
 
-ORDERS: tuple[str, ...] = ("weakest", "rank")
-_BAR_CELLS = 10
+__all__ = ["ORDERS", "ordered_sensors", "ratio_bar", "render_text"]
 _FILE_WIDTH = 100  # columns when writing to a file or pipe
-_EIGHTHS = " ▏▎▍▌▋▊▉█"
-_VERDICT_STYLE = {"ok": "green", "weak": "yellow", "fail": "bold red", "unsolved": "magenta"}
 _SEVERITY_STYLE = {Severity.ERROR: "bold red", Severity.WARNING: "yellow", Severity.INFO: "cyan"}
-
-
-def ratio_bar(ratio: float, best_ratio: float, cells: int = _BAR_CELLS) -> str:
-    """A bar ``cells`` wide, full for ``best_ratio``, in eighth-cell steps.
-
-    Examples
-    --------
-    >>> ratio_bar(0.5, 1.0, cells=4)
-    '██  '
-    """
-    if best_ratio <= 0 or ratio <= 0:
-        return " " * cells
-    eighths = round(min(ratio / best_ratio, 1.0) * cells * 8)
-    full, rest = divmod(eighths, 8)
-    bar = "█" * full + (_EIGHTHS[rest] if rest else "")
-    return bar.ljust(cells)
-
-
-def ordered_sensors(sensors: tuple[SensorResult, ...], order: str) -> list[SensorResult]:
-    """``rank``: most sensitive first; ``weakest``: least sensitive first, with
-    unsolved pads (no metrics, nothing known) at the very top."""
-    if order not in ORDERS:
-        raise ValueError(f"unknown order {order!r}; choose one of: {', '.join(ORDERS)}")
-    by_rank = sorted(sensors, key=lambda r: (r.metrics is None, r.rank,
-                                             name_order(r.sensor.name)))
-    if order == "rank":
-        return by_rank
-    return sorted(sensors, key=lambda r: (r.metrics is not None, -r.rank,
-                                          name_order(r.sensor.name)))
-
-
-def _pf(value: float) -> str:
-    return f"{value:.2f}" if abs(value) >= 0.1 else f"{value:.3f}"
 
 
 def _header(console: Console, report: Report) -> None:
@@ -87,45 +52,6 @@ def _cautions(console: Console, report: Report) -> None:
         grid.add_row(Text("CAUTION", style="bold reverse yellow"), caution)
     console.print()
     console.print(grid)
-
-
-def _ref_or_net(r: SensorResult) -> str:
-    """The first reference, else the first net: how to find the pad in KiCad."""
-    s = r.sensor
-    return (s.refs[0] if s.refs else s.nets[0] if s.nets else "") + (
-        "…" if len(s.refs) > 1 else "")
-
-
-def _sensor_table(console: Console, report: Report, order: str) -> None:
-    rows = ordered_sensors(report.sensors, order)
-    title = "weakest first" if order == "weakest" else "most sensitive first"
-    console.print()
-    console.print(Text(f"Electrodes ({len(rows)}), {title}", style="bold"))
-    if not rows:
-        console.print("  no electrodes found: nothing was solved or judged")
-        return
-    table = Table(box=None, pad_edge=False, header_style="bold", show_edge=False,
-                  collapse_padding=True)
-    for name, justify in (("rank", "right"), ("sensor", "left"), ("ref/net", "left"),
-                          ("kind", "left"),
-                          ("area mm²", "right"), ("Cp pad", "right"), ("Cp trace", "right"),
-                          ("Cp total", "right"), ("ΔC", "right"), ("ΔC/Cp", "right"),
-                          ("", "left"), ("verdict", "left")):
-        table.add_column(name, justify=justify, no_wrap=True)  # type: ignore[arg-type]
-    best = max((r.metrics.delta_ratio for r in rows if r.metrics), default=0.0)
-    for r in rows:
-        s, m = r.sensor, r.metrics
-        cells = [str(r.rank) if m else "–", s.name, _ref_or_net(r), s.kind,
-                 f"{s.area_mm2:.1f}"]
-        if m is None:
-            cells += ["–"] * 5 + [""]
-        else:
-            cells += [_pf(m.cp_pad_pf), _pf(m.cp_trace_pf), _pf(m.cp_total_pf),
-                      f"{m.delta_c_pf:.3f}", f"{m.delta_ratio * 100:.2f} %",
-                      ratio_bar(m.delta_ratio, best)]
-        table.add_row(*cells, Text(r.verdict, style=_VERDICT_STYLE.get(r.verdict, "")))
-    console.print(table)
-    console.print(Text("  capacitances in pF; ΔC is the change under a finger", style="dim"))
 
 
 def _where(d: DecidedFinding) -> str:
@@ -266,15 +192,14 @@ def render_text(report: Report, stream: TextIO, colour: bool, *, order: str = "w
         Columns; ``None`` asks the terminal, or 100 when not writing to one.
     """
     if width is None:
-        probe = Console(file=stream)
-        width = probe.width if probe.is_terminal else _FILE_WIDTH
+        width = stream_width(stream, _FILE_WIDTH)
     buffer = io.StringIO()
     console = Console(file=buffer, force_terminal=colour, no_color=not colour,
                       color_system="standard" if colour else None, highlight=False,
                       emoji=False, markup=False, width=width, soft_wrap=False)
     _header(console, report)
     _cautions(console, report)
-    _sensor_table(console, report, order)
+    sensor_table(console, report, order)
     render_precise_sections(console, report, ordered_sensors(report.sensors, order))
     _findings(console, report)
     _rule_counts(console, report)

@@ -17,10 +17,12 @@ import math
 from typing import TYPE_CHECKING
 
 from rich.console import Console
+from rich.padding import Padding
 from rich.table import Table
 from rich.text import Text
 
 from auditor.decide.records import Report, SensorResult
+from auditor.report.text_fit import print_note
 
 if TYPE_CHECKING:
     from auditor.model.results import CrosstalkPair, PreciseExtras, SegmentScan
@@ -29,6 +31,8 @@ if TYPE_CHECKING:
 MAX_PAIRS = 10
 #: Widest sparkline; longer scans are binned (each cell the bin's largest ΔC).
 MAX_SPARK_CELLS = 60
+#: Narrowest sparkline, whatever the terminal width (the grid wraps below it).
+MIN_SPARK_CELLS = 12
 _SPARKS = "▁▂▃▄▅▆▇█"
 _DEAD, _REVERSAL, _PLAIN = "×", "!", "·"
 
@@ -74,8 +78,8 @@ def method_table(console: Console, results: list[SensorResult]) -> None:
                       f"{m.delta_c_pf:.3f}", quick_delta,
                       _change(m.delta_c_pf, m.quick_delta_c_pf))
     console.print(table)
-    console.print(Text("  precise: 3-D solve of the real copper; quick: the pad as a disk "
-                       "(axisymmetric)", style="dim"))
+    print_note(console, "precise: 3-D solve of the real copper; quick: the pad as a disk "
+                       "(axisymmetric)")
     _reasons(console, solved)
 
 
@@ -117,8 +121,8 @@ def _coupling(console: Console, extras: PreciseExtras) -> None:
     console.print(table)
     if len(pairs) > MAX_PAIRS:
         console.print(f"  … {len(pairs) - MAX_PAIRS} more pairs, weaker (see --format json)")
-    console.print(Text("  crosstalk in pF with every other electrode held at ground; "
-                       "shares of each pad's own Cp", style="dim"))
+    print_note(console, "crosstalk in pF with every other electrode held at ground; "
+                       "shares of each pad's own Cp")
 
 
 def sparkline(values: list[float], top: float) -> str:
@@ -164,6 +168,21 @@ def _ranges(zones: tuple[tuple[float, float], ...]) -> str:
     return ", ".join(f"{lo:.1f}–{hi:.1f} mm" for lo, hi in zones) if zones else "none"
 
 
+def _peak(scan: SegmentScan, segment: int) -> str:
+    peak = max(range(len(scan.positions_mm)), key=lambda n: scan.delta_pf[n][segment])
+    return (f"peak {scan.delta_pf[peak][segment]:.3f} pF at "
+            f"{scan.positions_mm[peak]:.1f} mm")
+
+
+def _spark_cells(console: Console, scan: SegmentScan, peaks: list[str]) -> int:
+    """Sparkline cells that leave room for the names and peaks on one line
+    (at least :data:`MIN_SPARK_CELLS`, at most :data:`MAX_SPARK_CELLS`)."""
+    names = max([len("marks"), *(len(n) for n in scan.segment_names)]) + 2
+    beside = max([len(p) for p in peaks] + [len(f"{_DEAD} dead zone, {_REVERSAL} reversal")])
+    room = console.width - names - beside - 4  # two gaps of two columns
+    return max(MIN_SPARK_CELLS, min(MAX_SPARK_CELLS, room))
+
+
 def _scan_block(console: Console, scan: SegmentScan) -> None:
     first, last = scan.positions_mm[0], scan.positions_mm[-1]
     console.print()
@@ -175,23 +194,22 @@ def _scan_block(console: Console, scan: SegmentScan) -> None:
                  else "not measurable")
     reversals = (", ".join(f"{p:.1f} mm" for p in scan.reversals_mm)
                  if scan.reversals_mm else "none")
-    console.print(f"  linearity (worst position error) {linearity} · dead zones "
-                  f"{_ranges(scan.dead_zones_mm)} · reversals {reversals}")
-    bins = binned(len(scan.positions_mm))
+    console.print(Padding(f"linearity (worst position error) {linearity} · dead zones "
+                          f"{_ranges(scan.dead_zones_mm)} · reversals {reversals}", (0, 0, 0, 2)))
+    peaks = [_peak(scan, i) for i in range(len(scan.segment_names))]
+    bins = binned(len(scan.positions_mm), _spark_cells(console, scan, peaks))
     top = max((max(row) for row in scan.delta_pf if row), default=0.0)
     grid = Table.grid(padding=(0, 2))
     for _ in range(3):
         grid.add_column(no_wrap=True)
     for i, name in enumerate(scan.segment_names):
         series = [max(scan.delta_pf[n][i] for n in cell) for cell in bins]
-        peak = max(range(len(scan.positions_mm)), key=lambda n: scan.delta_pf[n][i])
-        grid.add_row(f"  {name}", sparkline(series, top),
-                     f"peak {scan.delta_pf[peak][i]:.3f} pF at {scan.positions_mm[peak]:.1f} mm")
+        grid.add_row(f"  {name}", sparkline(series, top), peaks[i])
     grid.add_row("  marks", Text(_marks(scan, bins), style="dim"),
                  Text(f"{_DEAD} dead zone, {_REVERSAL} reversal", style="dim"))
     console.print(grid)
-    console.print(Text(f"  ΔC against finger position along the {scan.kind}; a full block is "
-                       f"{top:.3f} pF", style="dim"))
+    print_note(console, f"ΔC against finger position along the {scan.kind}; a full block is "
+                       f"{top:.3f} pF")
 
 
 def render_precise_sections(console: Console, report: Report,

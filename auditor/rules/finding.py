@@ -9,6 +9,8 @@ from __future__ import annotations
 import enum
 from dataclasses import dataclass
 
+from auditor.model.vocabulary import SEVERITY_NAMES, FindingKey
+
 
 class Severity(enum.IntEnum):
     """Severity scale; larger is worse, so ``>=`` compares as people expect."""
@@ -29,7 +31,7 @@ class Severity(enum.IntEnum):
         try:
             return cls[text.strip().upper()]
         except KeyError:
-            choices = ", ".join(s.name.lower() for s in sorted(cls, reverse=True))
+            choices = ", ".join(SEVERITY_NAMES)
             raise ValueError(f"unknown severity {text!r}; choose one of: {choices}") from None
 
     @property
@@ -72,7 +74,7 @@ class Finding:
     sensor: str = ""
 
     @property
-    def key(self) -> tuple[str, str, tuple[str, ...], tuple[str, ...]]:
+    def key(self) -> FindingKey:
         """Identity that survives re-saves of the board: rule, sensor, nets,
         references (no uuids, no coordinates, no float noise)."""
         return (self.rule_id, self.sensor, self.nets, self.refs)

@@ -19,14 +19,16 @@ import re
 from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass, field
 
+from auditor.model.vocabulary import TOUCH_KINDS, SensorKind
 from auditor.rules.context import Limits, RuleContext
 from auditor.rules.finding import Finding, Severity
-from auditor.sensors.model import Sensor, SensorKind
+from auditor.sensors.model import Sensor
 
 _SLUG = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
 
-ALL_KINDS: tuple[SensorKind, ...] = (
-    "button", "slider", "wheel", "proximity", "mutual-tx", "mutual-rx")
+#: Sensor rules run on these kinds only (key switches and other non-touch
+#: kinds get none).
+ALL_KINDS: tuple[SensorKind, ...] = TOUCH_KINDS
 
 
 @dataclass(frozen=True)
@@ -141,20 +143,6 @@ def all_rules() -> tuple[RuleSpec, ...]:
     import auditor.rules.builtin  # noqa: F401 - registers the rules
 
     return tuple(_REGISTRY[k] for k in sorted(_REGISTRY))
-
-
-def get_rule(rule_id: str) -> RuleSpec:
-    """One rule by id.
-
-    Raises
-    ------
-    KeyError
-        With the valid ids listed.
-    """
-    rules = {spec.rule_id: spec for spec in all_rules()}
-    if rule_id not in rules:
-        raise KeyError(f"unknown rule {rule_id!r}; known rules: {', '.join(rules)}")
-    return rules[rule_id]
 
 
 @dataclass(frozen=True)

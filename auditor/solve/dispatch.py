@@ -18,11 +18,12 @@ from auditor.config import Config
 from auditor.errors import UsageError
 from auditor.model.board import Board
 from auditor.model.results import PadMetrics
+from auditor.model.vocabulary import SELF_KINDS
 from auditor.sensors.model import Sensor
 from auditor.solve.mutual import metrics_for_mutual, mutual_partner
 from auditor.solve.quick import QuickSolves, metrics_from_quick
 from auditor.solve.route import Route, forced, route_for
-from auditor.solve.setup import SELF_KINDS, FieldInput, pad_setup_for, quick_unfit_reason
+from auditor.solve.setup import FieldInput, pad_setup_for, quick_unfit_reason
 
 Progress = Callable[[str, int, int], None]
 

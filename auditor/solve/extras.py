@@ -27,9 +27,10 @@ from auditor.field.precise import (
 from auditor.field.round_pad import merged_ground
 from auditor.model.board import Board
 from auditor.model.results import CouplingTable, PreciseExtras, SegmentScan
+from auditor.model.vocabulary import SELF_KINDS
 from auditor.sensors.model import Sensor
 from auditor.solve.precise import PreciseStack, ground_conductors, stack_for, window_around
-from auditor.solve.setup import DEFAULT_FINGER_MM, SELF_KINDS
+from auditor.solve.setup import DEFAULT_FINGER_MM
 
 COUPLING_MARGIN_MM = 5.0
 COUPLING_CELL_MM = 0.5

@@ -10,8 +10,9 @@ from auditor.field.api import PadSetup, PadSolve, solve_pad
 from auditor.field.batch import PadBatch
 from auditor.model.board import Board
 from auditor.model.results import PadMetrics
+from auditor.model.vocabulary import SELF_KINDS
 from auditor.sensors.model import Sensor
-from auditor.solve.setup import SELF_KINDS, FieldInput, pad_setup_for, quick_unfit_reason
+from auditor.solve.setup import FieldInput, pad_setup_for, quick_unfit_reason
 
 
 def metrics_from_quick(mapped: FieldInput) -> PadMetrics:

@@ -41,7 +41,6 @@ from __future__ import annotations
 import math
 from collections.abc import Mapping
 from dataclasses import dataclass, replace
-from typing import Literal
 
 from shapely.geometry import Polygon
 
@@ -49,6 +48,7 @@ from auditor.config import Config
 from auditor.field.api import PadSetup
 from auditor.field.pad_model import DEFAULT_GROUND_MARGIN_MM
 from auditor.model.board import Board
+from auditor.model.vocabulary import PadSide
 from auditor.sensors.model import Sensor
 from auditor.solve.shadows import LayerCopper, describe, layer_copper, measured_fill
 from auditor.solve.stack import board_layers_from_touch, overlay_with_mask, touch_mask
@@ -60,7 +60,6 @@ from auditor.solve.traces import trace_runs_for
 DEFAULT_FINGER_MM = 10.0
 FINGER_ORIGIN = "physics.md §3: 8-10 mm disk model, contact patch 9-11 mm"
 
-SELF_KINDS = ("button", "slider", "wheel", "proximity")
 
 @dataclass(frozen=True)
 class FieldInput:
@@ -135,7 +134,7 @@ def _finger_mm(config: Config, thresholds: Mapping[str, float | int | bool]) -> 
 
 
 def _side(sensor: Sensor, board: Board, config: Config,
-          notes: list[str]) -> Literal["touch", "far"]:
+          notes: list[str]) -> PadSide:
     outer = board.copper_layers
     touch_layer = outer[0] if config.touch_side == "front" else outer[-1]
     far_layer = outer[-1] if config.touch_side == "front" else outer[0]
@@ -275,7 +274,8 @@ def quick_unfit_reason(sensor: Sensor) -> str:
     if filled > 0 and sensor.area_mm2 / filled < MIN_OUTLINE_FILL:
         share = sensor.area_mm2 / filled
         return (f"copper fills only {share:.0%} of its outline (a loop or comb): an "
-                "equal-area disk does not represent it; run with --precise")
+                "equal-area disk does not represent it; the automatic mode or --precise solves "
+                "it in 3-D")
     return ""
 
 

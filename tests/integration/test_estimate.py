@@ -14,7 +14,10 @@ from auditor.field.pad_model import field_matrices
 
 
 def _run(argv: list[str], capsys: pytest.CaptureFixture[str]) -> tuple[int, str, str]:
-    code = main(["estimate", *argv])
+    try:
+        code = main(["estimate", *argv])
+    except SystemExit as stop:  # usage errors found by argparse (e.g. a bad --power choice)
+        code = int(stop.code or 0)
     out, err = capsys.readouterr()
     return code, out, err
 

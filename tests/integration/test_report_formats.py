@@ -95,7 +95,7 @@ def test_unknown_format_lists_the_choices() -> None:
 
 
 def test_golden_json_is_valid_json_with_the_schema_version() -> None:
-    assert json.loads((GOLDEN / "sample.json").read_text())["schema_version"] == 1
+    assert json.loads((GOLDEN / "sample.json").read_text())["schema_version"] == 2
 
 
 # --- end to end through `padaudit audit` on a generated fixture board -------

@@ -65,7 +65,7 @@ def sample_sensors() -> tuple[Sensor, ...]:
     )
 
 
-_METRICS = {  # name: (cp_pad, cp_trace, delta_c, verdict, rank); ratio derived
+_METRICS = {  # name: (cp_pad, cp_trace, delta_c, strength, rank); ratio derived
     "SW_POWER": (8.2, 1.9, 0.62, "ok", 1),
     "SW_MODE": (7.9, 3.4, 0.41, "ok", 2),
     "SLD_1": (5.1, 2.2, 0.21, "ok", 3),
@@ -82,11 +82,11 @@ def sample_results() -> tuple[SensorResult, ...]:
         if sensor.name not in _METRICS:
             out.append(SensorResult(sensor, None, 7, "unsolved"))
             continue
-        pad, trace, delta, verdict, rank = _METRICS[sensor.name]
+        pad, trace, delta, strength, rank = _METRICS[sensor.name]
         total = pad + trace
         metrics = PadMetrics(pad, trace, total, delta, delta / total,
                              method_reason="disk model (sample text)")
-        out.append(SensorResult(sensor, metrics, rank, verdict))
+        out.append(SensorResult(sensor, metrics, rank, strength))
     return tuple(out)
 
 

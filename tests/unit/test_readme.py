@@ -25,7 +25,7 @@ import pytest
 
 from auditor.cli.main import _load_commands, build_parser
 from auditor.config.load import discover_config
-from auditor.rules.profiles import Profile, load_profile
+from auditor.config.profiles import Profile, load_profile
 from auditor.rules.registry import RuleSpec, all_rules
 
 ROOT = Path(__file__).resolve().parents[2]

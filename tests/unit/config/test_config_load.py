@@ -11,6 +11,7 @@ from hypothesis import strategies as st
 
 from auditor.config import (
     Config,
+    Overlay,
     discover_config,
     find_config,
     load_config,
@@ -181,10 +182,17 @@ def test_overlay_spec(spec: str, er: float) -> None:
     assert parse_overlay_spec(spec).epsilon_r == er
 
 
-@pytest.mark.parametrize("spec", ["2", "x:acrylic", "2:", "-1:3", "2:0.5", "2:kryptonite"])
+@pytest.mark.parametrize("spec", ["2", "x:acrylic", "2:", "-1:3", "2:0.5", "2:kryptonite",
+                                  "0:acrylic", "1e-9:2", "2000:2"])
 def test_bad_overlay_spec(spec: str) -> None:
-    with pytest.raises(UsageError):
+    with pytest.raises(UsageError, match=f"^--overlay '{spec}': "):
         parse_overlay_spec(spec)
+
+
+def test_overlay_none_is_no_cover() -> None:
+    assert parse_overlay_spec(" None ") == Overlay(0.0, 1.0, "")
+    assert Config(overlay=Overlay(0.0, 1.0, ""), air_gap_mm=1.0).describe_overlay() == \
+        "none + 1 mm air"
 
 
 def test_bad_flag_choice_rejected() -> None:

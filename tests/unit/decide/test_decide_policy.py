@@ -8,7 +8,7 @@ import random
 import pytest
 
 from auditor.config.model import Waiver
-from auditor.decide import Policy, decide, mark_baseline, sensitivity_ranks, sensor_verdict
+from auditor.decide import Policy, decide, mark_baseline, sensitivity_ranks, sensor_strength
 from auditor.model.results import PadMetrics
 from auditor.rules.finding import Finding, Severity
 from auditor.rules.registry import all_rules
@@ -92,9 +92,9 @@ def pf(cp: float, dc: float) -> PadMetrics:
     (None, "unsolved"), (pf(10, 0.05), "fail"), (pf(40, 0.5), "weak"),
     (pf(20, 0.15), "weak"), (pf(15, 0.5), "ok"),
 ])
-def test_verdicts_follow_default_limits(metrics: PadMetrics | None, verdict: str) -> None:
+def test_strengths_follow_default_limits(metrics: PadMetrics | None, verdict: str) -> None:
     limits = {"min_delta_c_pf": 0.1, "min_delta_ratio": 0.01, "controller_max_cp_pf": 30.0}
-    assert sensor_verdict(metrics, limits) == verdict
+    assert sensor_strength(metrics, limits) == verdict
 
 
 def test_ranks_by_ratio_ties_by_name() -> None:

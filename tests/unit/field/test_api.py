@@ -109,7 +109,7 @@ def test_hatched_plane_rings_keep_the_fill() -> None:
 
 
 def _touch_delta(outer_mm: float, finger: axisym.Sheet) -> float:
-    layers = (axisym.Layer(-1.6, 0.0, 4.4), axisym.Layer(0.0, 2.0, 2.8))
+    layers = (axisym.DielectricSlab(-1.6, 0.0, 4.4), axisym.DielectricSlab(0.0, 2.0, 2.8))
     base = (axisym.Sheet("pad", 0.0, 5.0), axisym.Sheet("ground", 0.0, outer_mm, 6.0))
     plain = axisym.solve_axisym(axisym.AxisymModel(base, layers)).matrix
     touched = axisym.solve_axisym(axisym.AxisymModel((*base, finger), layers)).matrix

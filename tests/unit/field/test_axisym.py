@@ -8,7 +8,7 @@ import numpy as np
 import pytest
 from scipy.constants import epsilon_0
 
-from auditor.field.axisym import AxisymModel, Layer, Sheet, solve_axisym
+from auditor.field.axisym import AxisymModel, DielectricSlab, Sheet, solve_axisym
 from auditor.field.circuit import reduced, two_terminal_pf
 
 #: pF per eps0 * (1 mm): the unit the reference tables use (C / (eps0 a), a = 1 mm).
@@ -68,7 +68,7 @@ def test_disk_on_grounded_substrate(er: float, height: float, expected: float) -
     # Love/Copson equation with the grounded-slab image kernel (physics reference 1.6;
     # Chew & Kong, IEEE MTT-28 (1980) 98 agrees within 0.26 % at er 4.4, h/a 0.1).
     model = AxisymModel((Sheet("ground", -height, None), Sheet("pad", 0.0, 1.0)),
-                        (Layer(-height, 0.0, er),))
+                        (DielectricSlab(-height, 0.0, er),))
     value = solve_axisym(model).matrix.entry("pad", "pad") / EPS0_A
     assert value == pytest.approx(expected, rel=0.01)
 
@@ -76,7 +76,7 @@ def test_disk_on_grounded_substrate(er: float, height: float, expected: float) -
 def test_disk_on_dielectric_interface_scales_by_mean_permittivity() -> None:
     # Exact symmetry result: a sheet in the interface of two half-spaces has
     # C = C_free (er1 + er2) / 2, so 4 eps0 a (1 + 4.4) (physics reference 1.6).
-    model = AxisymModel((Sheet("pad", 0.0, 1.0),), (Layer(-1e4, 0.0, 4.4),))
+    model = AxisymModel((Sheet("pad", 0.0, 1.0),), (DielectricSlab(-1e4, 0.0, 4.4),))
     value = solve_axisym(model).matrix.entry("pad", "pad") / EPS0_A
     assert value == pytest.approx(4 * (1 + 4.4), rel=0.005)
 
@@ -110,7 +110,7 @@ def test_matrix_is_symmetric_with_negative_mutual_terms() -> None:
     # Maxwell capacitance coefficients (Smythe 1968 ch. 2): symmetric,
     # positive diagonal, non-positive off-diagonal, non-negative row sums.
     model = AxisymModel((Sheet("pad", 0.0, 5.0), Sheet("ring", 0.0, 10.0, 6.0),
-                         Sheet("finger", 2.0, 4.0)), (Layer(0.0, 2.0, 3.0),))
+                         Sheet("finger", 2.0, 4.0)), (DielectricSlab(0.0, 2.0, 3.0),))
     values = solve_axisym(model).matrix.array()
     assert values == pytest.approx(values.T, rel=1e-12, abs=1e-15)
     assert (values.diagonal() > 0).all()
@@ -145,8 +145,8 @@ def test_pair_solve_equals_two_separate_solves() -> None:
     # The shared-factorisation update is exact algebra: same mesh, same answer.
     from auditor.field.axisym import solve_axisym_pair
     base = AxisymModel((Sheet("pad", 0.0, 5.0), Sheet("ground", 0.0, 12.0, 6.0),
-                        Sheet("ground", -1.6, 12.0)), (Layer(-1.6, 0.0, 4.4),
-                                                       Layer(0.0, 2.0, 2.8)))
+                        Sheet("ground", -1.6, 12.0)), (DielectricSlab(-1.6, 0.0, 4.4),
+                                                       DielectricSlab(0.0, 2.0, 2.8)))
     finger = Sheet("finger", 2.0, 5.0)
     plain, touched = solve_axisym_pair(base, finger)
     alone = solve_axisym(AxisymModel(base.sheets, base.layers, (finger,))).matrix

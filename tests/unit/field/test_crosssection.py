@@ -11,7 +11,7 @@ from scipy.special import ellipk
 
 from auditor.field.crosssection import (
     CrossSection,
-    Slab,
+    DielectricSlab,
     Strip,
     TraceSection,
     solve_cross_section,
@@ -43,7 +43,7 @@ def _kk(k: float) -> float:
 def _microstrip(u: float, er: float) -> CrossSection:
     return CrossSection((Strip("strip", -u / 2, u / 2, 1.0),
                          Strip("ground", -math.inf, math.inf, 0.0)),
-                        "ground", (Slab(0.0, 1.0, er),))
+                        "ground", (DielectricSlab(0.0, 1.0, er),))
 
 
 @pytest.mark.parametrize("er", [1.0, 4.4, 10.0])
@@ -80,7 +80,7 @@ def test_coplanar_strips_on_half_space() -> None:
     width = (gap * math.sqrt(2) - gap) / 2
     section = CrossSection((Strip("a", -gap / 2 - width, -gap / 2, 0.0),
                             Strip("b", gap / 2, gap / 2 + width, 0.0)), "b",
-                           (Slab(-math.inf, 0.0, 4.4),))
+                           (DielectricSlab(-math.inf, 0.0, 4.4),))
     value = solve_cross_section(section).entry("a", "a")
     assert value == pytest.approx(23.906 * PF_PER_M_TO_PF_PER_MM, rel=0.005)
 

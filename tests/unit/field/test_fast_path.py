@@ -18,7 +18,7 @@ from auditor.field import fem
 from auditor.field.api import BoardLayer, PadSetup, TraceRunSpec, solve_pad
 from auditor.field.axisym import (
     AxisymModel,
-    Layer,
+    DielectricSlab,
     Sheet,
     _cell_permittivity,
     _conductor_nodes,
@@ -82,8 +82,8 @@ def test_one_factorisation_pair_equals_two_separate_solves(eta: float) -> None:
     # trailing block must give what a second factorisation with the finger's
     # nodes fixed gives, to rounding.
     model = AxisymModel((Sheet("pad", 0.0, 5.0), Sheet("ground", 0.0, 12.0, 6.0),
-                         Sheet("ground", -1.6, 12.0)), (Layer(-1.6, 0.0, 4.4),
-                                                        Layer(0.0, 2.0, 2.8)))
+                         Sheet("ground", -1.6, 12.0)), (DielectricSlab(-1.6, 0.0, 4.4),
+                                                        DielectricSlab(0.0, 2.0, 2.8)))
     finger = Sheet("finger", 2.0, 5.0)
     hinted = AxisymModel(model.sheets, model.layers, (finger,))
     mesh = build_mesh(hinted, eta, 30.0)
@@ -106,7 +106,7 @@ def test_pair_falls_back_to_two_factorisations_without_grid_order() -> None:
     # is then two plain solves, equal to the ordered path (common practice,
     # no source).
     model = AxisymModel((Sheet("pad", 0.0, 5.0), Sheet("ground", -1.6, 12.0)),
-                        (Layer(-1.6, 0.0, 4.4),), (Sheet("finger", 2.0, 5.0),))
+                        (DielectricSlab(-1.6, 0.0, 4.4),), (Sheet("finger", 2.0, 5.0),))
     mesh = build_mesh(model, 0.3, 30.0)
     eps = _cell_permittivity(model, mesh)
     stiffness = fem.assemble(mesh, eps, _far_field_terms(model, mesh, eps))

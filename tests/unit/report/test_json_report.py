@@ -12,7 +12,8 @@ import pytest
 import sample_report as sample
 
 from auditor.model.results import PadMetrics
-from auditor.report.as_json import SCHEMA_VERSION, load_schema, render_json, rounded, to_document
+from auditor.report.as_json import SCHEMA_VERSION, load_schema, render_json, to_document
+from auditor.report.rounding import significant
 
 
 def _text(report: object) -> str:
@@ -85,7 +86,7 @@ def test_metrics_are_copied_not_recomputed() -> None:
     (float("inf"), None), (None, None), (1.23456789e-5, 1.23457e-5),
 ])
 def test_rounding_to_six_significant_digits(value: float | None, expected: float | None) -> None:
-    assert rounded(value) == expected
+    assert significant(value) == expected
 
 
 def test_nan_metrics_become_null_not_invalid_json() -> None:
@@ -95,3 +96,14 @@ def test_nan_metrics_become_null_not_invalid_json() -> None:
     text = _text(dataclasses.replace(report, sensors=(broken,)))
     assert "NaN" not in text
     assert json.loads(text)["sensors"][0]["metrics"]["cp_pad_pf"] is None
+
+
+def test_verdict_is_the_worst_finding_and_strength_has_its_own_field() -> None:
+    """SLD_1 has a strong signal and an error finding: verdict error, strength
+    ok (issue 14); SW_POWER's only warning is waived."""
+    doc = to_document(sample.sample_report())
+    by_name = {s["name"]: s for s in doc["sensors"]}
+    assert (by_name["SLD_1"]["verdict"], by_name["SLD_1"]["strength"]) == ("error", "ok")
+    assert (by_name["SW_POWER"]["verdict"], by_name["SW_POWER"]["strength"]) == ("waived", "ok")
+    assert (by_name["SLD_2"]["verdict"], by_name["SLD_2"]["strength"]) == ("ok", "weak")
+    assert by_name["SW_AUX"]["verdict"] == "unsolved"

@@ -56,7 +56,7 @@ def test_markdown_summary_for_a_pull_request() -> None:
     render_markdown(sample.sample_report(), out)
     text = out.getvalue()
     assert text.startswith("### padaudit: **fail**: 3 findings at or above error")
-    assert "| rank | sensor | kind | Cp total pF | ΔC pF | ΔC/Cp | verdict |" in text
+    assert "| rank | sensor | kind | Cp total pF | ΔC pF | ΔC/Cp | signal | verdict |" in text
     assert "| 1 | SW_POWER | button | 10.10 | 0.620 | 6.14 % | ok |" in text
     assert "#### Failing (3)" in text and "Other findings (3)" in text
     assert "> **Caution:**" in text
@@ -76,3 +76,12 @@ def test_markdown_caps_long_lists() -> None:
     text = out.getvalue()
     assert text.count("`ground-gap-tight`") == MAX_LISTED
     assert "… and 5 more (see the full report)" in text
+
+
+def test_junit_case_of_a_failing_electrode_never_says_ok() -> None:
+    """A case with a failure element carries the error verdict in its output."""
+    root = _junit(sample.sample_report())
+    for case in root.iter("testcase"):
+        if case.get("classname") == "padaudit.electrode" and case.find("failure") is not None:
+            out = case.findtext("system-out") or ""
+            assert out.startswith("verdict error, signal "), out

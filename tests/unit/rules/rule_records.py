@@ -7,8 +7,9 @@ from typing import Any
 
 from shapely.geometry import Point
 
+from auditor.config.profiles import load_profile
 from auditor.rules.context import RuleContext, RuleSettings
-from auditor.rules.profiles import load_profile
+from auditor.rules.registry import RuleSpec, all_rules
 from auditor.sensors.model import LayerShadow, SensePath, Sensor, Surroundings, TraceRun
 
 
@@ -44,3 +45,9 @@ def context(*sensors: Sensor, profile: str = "default", **changes: Any) -> RuleC
     base = RuleContext(sensors=tuple(sensors), settings=settings,
                        thresholds=dict(load_profile(profile).thresholds))
     return replace(base, **changes)
+
+
+def get_rule(rule_id: str) -> RuleSpec:
+    """One registered rule by id."""
+    (spec,) = [spec for spec in all_rules() if spec.rule_id == rule_id]
+    return spec

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from auditor.rules.docs import rules_markdown
+from auditor.report.rules_md import rules_markdown
 from auditor.rules.registry import all_rules
 
 DOC = Path(__file__).resolve().parents[3] / "docs" / "rules.md"

@@ -8,8 +8,9 @@ import re
 from pathlib import Path
 
 import pytest
+from origins import has_origin
 
-from auditor.rules.profiles import has_origin, load_profile
+from auditor.config.profiles import load_profile
 from auditor.rules.registry import all_rules
 
 MANIFEST = json.loads((Path(__file__).resolve().parents[3] / "fixtures" / "rules"

@@ -42,12 +42,13 @@ def test_reasons_only_for_unsolved_electrodes() -> None:
     plate = Point(50, 0).buffer(5)
     sensors = (_sensor("BTN", plate), _sensor("PROX", ring, "proximity"))
     solved = {"BTN": PadMetrics(1.0, 0.5, 1.5, 0.2, 0.13)}
-    reasons = unsolved_reasons(sensors, solved)
+    reasons = unsolved_reasons(sensors, solved, mode="quick")
     assert set(reasons) == {"PROX"}
     assert "loop or comb" in reasons["PROX"]
     # In precise mode the shape is solved as drawn: a missing result is not
     # blamed on the disk model.
     assert "loop" not in unsolved_reasons(sensors, solved, precise=True)["PROX"]
+    assert "loop" not in unsolved_reasons(sensors, solved, mode="auto")["PROX"]
 
 
 @pytest.mark.slow
@@ -65,6 +66,6 @@ def test_broken_sense_path_gives_no_numbers(tmp_path) -> None:  # type: ignore[n
     board.write_text("".join(lines), "utf-8")
     report = run_audit(board, AuditOptions(config_path=str(demo_config_path())))
     btn2 = next(r for r in report.sensors if r.sensor.name == "BTN2")
-    assert btn2.metrics is None and btn2.verdict == "unsolved"
+    assert btn2.metrics is None and btn2.strength == "unsolved"
     unsolved = [f.finding for f in report.findings if f.finding.rule_id == "electrode-unsolved"]
     assert any(f.sensor == "BTN2" and UNFOLLOWED_REASON in f.message for f in unsolved)

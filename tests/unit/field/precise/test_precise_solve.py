@@ -170,11 +170,11 @@ def test_round_touch_stack_agrees_with_axisymmetric_solve() -> None:
     (er 3), finger disk r 4 mm on top: every Maxwell entry within 1 % of the independent
     axisymmetric finite-element solve (auditor.field.axisym, itself checked against
     8 eps0 a and Love's values). Measured at 0.25 mm cells: within 0.45 %."""
-    from auditor.field.axisym import AxisymModel, Layer, Sheet, solve_axisym
+    from auditor.field.axisym import AxisymModel, DielectricSlab, Sheet, solve_axisym
 
     model = AxisymModel((Sheet("plane", 0.0, None), Sheet("pad", 1.6, 5.0),
                          Sheet("pour", 1.6, 12.0, 6.5), Sheet("finger", 3.6, 4.0)),
-                        (Layer(0.0, 1.6, 4.4), Layer(1.6, 3.6, 3.0)))
+                        (DielectricSlab(0.0, 1.6, 4.4), DielectricSlab(1.6, 3.6, 3.0)))
     axisym = solve_axisym(model).matrix.array()[1:, 1:]
     ring = Point(0, 0).buffer(12, quad_segs=128).difference(Point(0, 0).buffer(6.5, quad_segs=128))
     conductors = [Conductor("pad", Point(0, 0).buffer(5, quad_segs=128), 1),

@@ -3,8 +3,9 @@
 A profile file has ``description``, optionally ``extends`` (a built-in name
 or a path relative to the file), a ``[thresholds]`` table and a ``[rules]``
 table mapping rule ids to ``error``/``warning``/``info``/``off``. Each
-threshold in a built-in profile carries a comment naming its origin (one of
-:data:`ORIGIN_MARKERS`) on the lines directly above it.
+threshold in a built-in profile carries a comment naming its origin
+("published: ...", "common practice, no source" or "from memory") on the
+lines directly above it.
 
 Built-in profiles live in the repository's top-level ``rules/`` folder and
 ship inside the wheel as ``auditor/_profiles``; :func:`profile_dirs` finds
@@ -14,20 +15,18 @@ them in either place.
 from __future__ import annotations
 
 import math
-import re
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+from auditor.config.toml_positions import key_comments, key_line, read_toml
 from auditor.errors import ConfigError
 from auditor.rules.context import ThresholdValue
 from auditor.rules.finding import Severity
 from auditor.rules.registry import all_rules
-from auditor.rules.tomlfile import key_line, read_toml
 
 #: Every threshold comment in a built-in profile contains one of these.
-ORIGIN_MARKERS = ("published:", "common practice, no source", "from memory")
 
 #: Thresholds read by the measuring stage or the revision comparison rather
 #: than by a rule.
@@ -133,7 +132,7 @@ def _load(path: Path, seen: tuple[Path, ...]) -> Profile:
     _check_keys(table, text, path)
     own_thresholds = _thresholds(table.get("thresholds", {}), text, path)
     own_levels = _levels(table.get("rules", {}), text, path)
-    origins = threshold_notes(text)
+    origins = key_comments(text, "thresholds")
     name = path.stem
     parent_name = table.get("extends")
     if parent_name is None:
@@ -199,37 +198,3 @@ def check_level(rule_id: str, level: Any, path: str | Path, line: int | None) ->
 def severity_of_level(level: str) -> Severity | None:
     """``None`` for ``off``, else the severity."""
     return None if level == "off" else Severity.parse(level)
-
-
-_KEY = re.compile(r"^\s*([A-Za-z0-9_-]+)\s*=")
-
-
-def threshold_notes(text: str) -> dict[str, str]:
-    """For each key in ``[thresholds]``, the comment lines directly above it
-    (and a trailing comment on its own line), joined."""
-    notes: dict[str, str] = {}
-    comments: list[str] = []
-    in_table = False
-    for raw in text.splitlines():
-        stripped = raw.strip()
-        if stripped.startswith("["):
-            in_table = stripped.strip("[] ") == "thresholds"
-            comments = []
-        elif stripped.startswith("# ---"):
-            comments = []  # a section heading, not part of the next key's note
-        elif stripped.startswith("#"):
-            comments.append(stripped.lstrip("#").strip())
-        elif in_table and _KEY.match(raw):
-            key = _KEY.match(raw).group(1)  # type: ignore[union-attr]
-            trailing = raw.split("#", 1)[1].strip() if "#" in raw else ""
-            notes[key] = " ".join(c for c in (*comments, trailing) if c)
-            comments = []
-        else:
-            comments = []
-    return notes
-
-
-def has_origin(note: str) -> bool:
-    """True when a threshold note names its origin."""
-    lowered = note.lower()
-    return any(marker in lowered for marker in ORIGIN_MARKERS)

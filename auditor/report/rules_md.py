@@ -6,7 +6,7 @@ test checks the committed copy is current.
 
 from __future__ import annotations
 
-from auditor.rules.profiles import Profile, load_profile
+from auditor.config.profiles import Profile, load_profile
 from auditor.rules.registry import RuleSpec, all_rules
 
 

@@ -6,16 +6,16 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
+from origins import has_origin
 
-from auditor.errors import ConfigError
-from auditor.rules.profiles import (
+from auditor.config.profiles import (
     builtin_profile_names,
-    has_origin,
     known_thresholds,
     load_profile,
     profile_dirs,
-    threshold_notes,
 )
+from auditor.config.toml_positions import key_comments
+from auditor.errors import ConfigError
 
 
 def test_the_four_profiles_ship() -> None:
@@ -26,7 +26,7 @@ def test_the_four_profiles_ship() -> None:
 def test_every_threshold_in_every_profile_has_an_origin(name: str) -> None:
     text = next(d / f"{name}.toml" for d in profile_dirs()
                 if (d / f"{name}.toml").is_file()).read_text(encoding="utf-8")
-    notes = threshold_notes(text)
+    notes = key_comments(text, "thresholds")
     assert notes
     missing = [k for k, v in notes.items() if not has_origin(v)]
     assert missing == []
