@@ -67,9 +67,10 @@ class PadSetup:
         outer radius). Each ring's copper becomes one annulus of that share of
         the ring's width, centred in it, hatched like the plane if
         ``plane_fill`` < 1 (:func:`profile_sheets`).
-    front_depth_mm, front_profile:
+    front_depth_mm, front_profile, front_fill, front_hatch_pitch_mm:
         Copper between the pad and the finger (held at device ground), this
-        far above the pad, with its coverage ring by ring as for the plane.
+        far above the pad, with its coverage ring by ring, fill and hatch
+        pitch as for the plane.
     """
 
     pad_area_mm2: float
@@ -95,6 +96,8 @@ class PadSetup:
     plane_profile: tuple[tuple[float, float], ...] = ()
     front_depth_mm: float | None = None
     front_profile: tuple[tuple[float, float], ...] = ()
+    front_fill: float = 1.0
+    front_hatch_pitch_mm: float = 1.5
 
     @property
     def pad_radius_mm(self) -> float:
@@ -244,8 +247,8 @@ def ground_sheets(setup: PadSetup, inner_mm: float) -> tuple[Sheet, ...]:
                    else plane_sheets(setup.plane_depth_mm, outer, setup.plane_fill,
                                      setup.plane_hatch_pitch_mm))
     if setup.front_depth_mm is not None and setup.front_profile:
-        sheets += profile_sheets(setup.front_depth_mm, setup.front_profile, 1.0,
-                                 setup.plane_hatch_pitch_mm)
+        sheets += profile_sheets(setup.front_depth_mm, setup.front_profile, setup.front_fill,
+                                 setup.front_hatch_pitch_mm)
     return sheets
 
 

@@ -171,12 +171,14 @@ def _plane_fields(behind: LayerCopper | None, sensor: Sensor) -> dict[str, objec
     return fields
 
 
-def _front_fields(front: LayerCopper | None) -> dict[str, object]:
-    """Copper between electrode and finger: its height and effective coverage per ring."""
+def _front_fields(front: LayerCopper | None, board: Board,
+                  sensor: Sensor) -> dict[str, object]:
+    """Copper between electrode and finger: height, coverage per ring, hatch."""
     if front is None:
         return {}
-    rings = tuple((r, round(c * front.hatch_fill, 3)) for r, c in front.profile)
-    return {"front_depth_mm": front.depth_mm, "front_profile": rings}
+    return {"front_depth_mm": front.depth_mm, "front_profile": front.profile,
+            "front_fill": fill_step(front.hatch_fill) if front.hatch_fill < 1.0 else 1.0,
+            "front_hatch_pitch_mm": hatch_pitch_mm(board, sensor, front.layer)}
 
 
 def _copper_notes(coppers: tuple[LayerCopper, ...], notes: list[str]) -> None:
@@ -229,7 +231,7 @@ def pad_setup_for(sensor: Sensor, board: Board, config: Config,
         overlay_mm=overlay_mm, overlay_er=overlay_er, air_gap_mm=round(config.air_gap_mm, 3),
         finger_diameter_mm=finger, power=config.power, traces=runs,
         vias=sensor.path.vias if sensor.path else 0)
-    setup = replace(setup, **_plane_fields(behind, sensor), **_front_fields(front))  # type: ignore[arg-type]
+    setup = replace(setup, **_plane_fields(behind, sensor), **_front_fields(front, board, sensor))  # type: ignore[arg-type]
     snapped = snapped_to_finger(setup, notes)
     return FieldInput(snapped, tuple(notes), coppers)
 

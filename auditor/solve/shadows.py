@@ -171,11 +171,14 @@ def layer_copper(board: Board, sensor: Sensor, layer: str, outer_mm: float,
 
 
 def measured_fill(shadows: tuple[LayerShadow, ...], copper: LayerCopper) -> float:
-    """The hatch fill measured under the pad when the sensors stage has it
-    (the local figure it uses), else the hatch settings' closed form."""
+    """The fill under the pad as the sensors stage measured it (the local hatch
+    figure, or 1 where a hatched net's copper is solid under the pad), else the
+    hatch settings' closed form."""
     for shadow in shadows:
         if shadow.layer == copper.layer and shadow.fill == "hatched" and shadow.fill_ratio > 0:
             return shadow.fill_ratio
+        if shadow.layer == copper.layer and shadow.fill == "solid":
+            return 1.0
     return copper.hatch_fill
 
 
