@@ -90,7 +90,7 @@ def _reasons(console: Console, solved: list[SensorResult]) -> None:
         if r.metrics is not None and r.metrics.method_reason:
             by_reason.setdefault(r.metrics.method_reason, []).append(r.sensor.name)
     for reason, names in by_reason.items():
-        console.print(Text(f"  {', '.join(names)}: {reason}", style="dim"))
+        print_note(console, f"{', '.join(names)}: {reason}")
 
 
 def strongest_pairs(extras: PreciseExtras) -> list[CrosstalkPair]:

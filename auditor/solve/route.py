@@ -94,8 +94,8 @@ def _neighbour(sensor: Sensor, cover_mm: float) -> str:
     limit = NEIGHBOUR_COVERS * max(cover_mm, MIN_COVER_MM)
     if distance is None or distance >= limit:
         return ""
-    return (f"electrode {surround.nearest_sensor if surround else ''} {distance:.2f} mm away, "
-            f"closer than {NEIGHBOUR_COVERS:g} x the {cover_mm:g} mm cover")
+    return (f"another electrode {distance:.2f} mm away, closer than {NEIGHBOUR_COVERS:g} x "
+            f"the {cover_mm:g} mm cover")
 
 
 def _checks(sensor: Sensor, mapped: FieldInput) -> tuple[Callable[[], str], ...]:
@@ -119,8 +119,8 @@ def route_for(sensor: Sensor, mapped: FieldInput) -> Route:
         reason = check()
         if reason:
             return Route("precise", f"3-D: {reason}")
-    return Route("quick", "disk model: plate of moderate aspect, no close neighbour, "
-                          "even shadow, nothing in front")
+    return Route("quick", "disk model: a plate with even surroundings (no close neighbour, "
+                          "no uneven shadow, nothing in front)")
 
 
 def forced(route: Route, method: Method) -> Route:
