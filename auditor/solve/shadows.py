@@ -185,8 +185,9 @@ def measured_fill(shadows: tuple[LayerShadow, ...], copper: LayerCopper) -> floa
 def describe(copper: LayerCopper) -> str:
     """One note: what lies on the layer, by class, and how it is modelled."""
     where = "in front of" if copper.in_front else "behind"
-    parts = [f"{name} {'/'.join(nets[:3])}{'...' if len(nets) > 3 else ''} under "
-             f"{share:.0%} of the pad" for name, share, nets in copper.classes]
+    parts = [f"{name} {'/'.join(nets[:3])}{'...' if len(nets) > 3 else ''} "
+             + (f"under {share:.0%} of the pad" if share >= 0.005 else "beside the pad")
+             for name, share, nets in copper.classes]
     rings = ", ".join(f"{c:g} to {r:g} mm" for r, c in copper.profile)
     return (f"copper on {copper.layer} {where} the pad ({copper.depth_mm:g} mm): "
             f"{'; '.join(parts) or 'none'}; ring coverage {rings}")
