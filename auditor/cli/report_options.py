@@ -17,8 +17,13 @@ from typing import TextIO
 
 from auditor.cli.audit_runner import AuditFn, auditor_for, shown_as
 from auditor.cli.colour import COLOUR_CHOICES, use_colour
+from auditor.cli.outputs import (
+    require_value,
+    stdout_may_close,
+    write_output,
+    written_to_stdout,
+)
 from auditor.decide.records import Report
-from auditor.errors import UsageError
 from auditor.report.render import FORMATS, render
 from auditor.report.text import ORDERS
 
@@ -52,23 +57,24 @@ def add_report_options(parser: argparse.ArgumentParser) -> None:
                            "loses more than the profile's max_ratio_loss of its ratio")
 
 
-def _write_file(path: str, text: str) -> None:
-    try:
-        Path(path).write_text(text, encoding="utf-8")
-    except OSError as exc:
-        raise UsageError(f"{path}: cannot write: {exc.strerror or exc}") from None
+def _inputs(report: Report, args: argparse.Namespace) -> tuple[str, ...]:
+    """The boards this run read: no output may land on one of them."""
+    return tuple(p for p in (getattr(args, "board", None), report.info.board_path) if p)
 
 
-def _write_baseline(report: Report, path: str) -> None:
+def _check_values(args: argparse.Namespace) -> None:
+    for option in ("output", "svg", "baseline", "write_baseline", "against"):
+        require_value("--" + option.replace("_", "-"), getattr(args, option, None))
+
+
+def _write_baseline(report: Report, args: argparse.Namespace) -> None:
     """Record the report's findings (the audit accepted them all already)."""
     # Imported here, as the picture and the diff below: most runs use none
     # of them, and every import costs start-up time.
     from auditor.decide.baseline import Baseline, dumps
 
-    try:
-        Path(path).write_text(dumps(Baseline.of(report.findings)), encoding="utf-8")
-    except OSError as exc:
-        raise UsageError(f"{path}: cannot write: {exc.strerror}") from None
+    write_output("--write-baseline", args.write_baseline, dumps(Baseline.of(report.findings)),
+                 _inputs(report, args))
 
 
 def _with_board(report: Report) -> Report:
@@ -92,8 +98,9 @@ def _against(report: Report, args: argparse.Namespace, audit: AuditFn | None,
     with board_at(board, args.against) as old_copy:
         old = shown_as(audit(str(old_copy)), f"{args.against}:{locate(board).path}")
     diff = compare_reports(old, report)
-    stdout.write("\n")
-    render_diff(diff, "text", stdout, colour)
+    with stdout_may_close():
+        stdout.write("\n")
+        render_diff(diff, "text", stdout, colour)
     return diff.exit_code
 
 
@@ -115,29 +122,28 @@ def emit(report: Report, args: argparse.Namespace, *, audit: AuditFn | None = No
     environment = os.environ if env is None else env
     fmt, order = getattr(args, "format", "text"), getattr(args, "order", "weakest")
     colour = use_colour(getattr(args, "color", "auto"), out, environment)
+    _check_values(args)
     if getattr(args, "against", None):
         from auditor.gitrev import check_board_at
 
         check_board_at(report.info.board_path, args.against)
     if getattr(args, "write_baseline", None):
-        _write_baseline(report, args.write_baseline)
+        _write_baseline(report, args)
     if getattr(args, "svg", None):
-        from auditor.report.svg import write_svg
+        from auditor.report.svg import to_svg
 
-        try:
-            write_svg(_with_board(report), args.svg)
-        except OSError as exc:
-            raise UsageError(f"{args.svg}: cannot write: {exc.strerror}") from None
+        write_output("--svg", args.svg, to_svg(_with_board(report)), _inputs(report, args))
     if getattr(args, "output", None):
         import io
 
         buffer = io.StringIO()
         render(report, fmt, buffer, False, order=order)
-        _write_file(args.output, buffer.getvalue())
+        write_output("--output", args.output, buffer.getvalue(), _inputs(report, args))
         if not getattr(args, "quiet", False):
-            out.write(summary_line(report, args.output) + "\n")
+            written_to_stdout(lambda: out.write(summary_line(report, args.output) + "\n"))
     else:
-        render(report, fmt, out, colour and fmt == "text", order=order)
+        written_to_stdout(lambda: render(report, fmt, out, colour and fmt == "text",
+                                         order=order))
     code = report.exit_code
     if getattr(args, "against", None):
         code = max(code, _against(report, args, audit, out if fmt == "text" else sys.stderr,

@@ -20,6 +20,7 @@ from auditor.model.board import Board
 from auditor.model.results import PadMetrics
 from auditor.model.vocabulary import SELF_KINDS
 from auditor.sensors.model import Sensor
+from auditor.solve.lumped import with_lumped_parts
 from auditor.solve.mutual import metrics_for_mutual, mutual_partner
 from auditor.solve.quick import QuickSolves, metrics_from_quick
 from auditor.solve.route import Route, forced, route_for
@@ -141,7 +142,7 @@ def solve_sensors(board: Board, sensors: tuple[Sensor, ...], config: Config, *,
             out[sensor.name] = replace(out[sensor.name],
                                        method_reason=routes[sensor.name][0].reason)
         in_order.finish(sensor.name)
-    return {s.name: out[s.name] for s in sensors if s.name in out}
+    return with_lumped_parts(out, sensors, board, limits)
 
 
 #: The mutual pair has no 3-D solve in the audit yet.
