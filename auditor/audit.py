@@ -31,7 +31,7 @@ from auditor.rules.registry import all_rules, run_rules
 from auditor.sensors import find_sensors, mark_sense_neighbours, measure_each
 from auditor.sensors.model import Sensor, name_order
 from auditor.sensors.selection import SensorSelection
-from auditor.solve.dispatch import QuickSolves, unsolved_reasons
+from auditor.solve.dispatch import Mode, QuickSolves, unsolved_reasons
 from auditor.solve.dispatch import solve_sensors as field_solve
 
 if TYPE_CHECKING:  # the precise solver pulls in scipy.interpolate: load it only when used
@@ -49,7 +49,8 @@ class AuditOptions:
     touch_side: str | None = None
     fail_on: str | None = None
     solve: bool = True  # False: layout rules only, every sensor "unsolved"
-    precise: bool = False  # True: 3-D solve of the real copper shapes
+    precise: bool = False  # True: 3-D solve of the real copper shapes, every electrode
+    quick: bool = False  # True: the disk model for every electrode (neither: automatic)
     #: Called as ``progress(sensor_name, done, total)`` after each solve.
     progress: Callable[[str, int, int], None] | None = None
     #: Baseline file whose findings are accepted (shown, never failing).
@@ -102,12 +103,17 @@ def measuring_selection(setup: AuditSetup) -> SensorSelection:
 def solve_sensors(board: Board, sensors: tuple[Sensor, ...], setup: AuditSetup,
                   options: AuditOptions, quick: QuickSolves | None = None,
                   ) -> dict[str, PadMetrics]:
-    """Field metrics per sensor name, from the quick (or, with ``precise``,
-    the 3-D) solve; sensors the solver cannot map get no entry and are
-    reported ``unsolved`` (no number is made up). ``quick``: the quick
-    solves already started by :func:`_measured`."""
-    return field_solve(board, sensors, setup.config, precise=options.precise,
+    """Field metrics per sensor name, each from the model the solve mode
+    picks (:func:`solve_mode`); sensors the solver cannot map get no entry
+    and are reported ``unsolved`` (no number is made up). ``quick``: the
+    quick solves already started by :func:`_measured`."""
+    return field_solve(board, sensors, setup.config, mode=solve_mode(options),
                        progress=options.progress, thresholds=setup.thresholds, quick=quick)
+
+
+def solve_mode(options: AuditOptions) -> Mode:
+    """"precise" or "quick" when forced, else "auto" (the model per electrode)."""
+    return "precise" if options.precise else "quick" if options.quick else "auto"
 
 
 def _measured(board: Board, found: tuple[Sensor, ...], selection: SensorSelection,
@@ -118,7 +124,8 @@ def _measured(board: Board, found: tuple[Sensor, ...], selection: SensorSelectio
     measured so that solving overlaps measuring."""
     quick = None
     if options.solve and not options.precise:
-        quick = QuickSolves(board, setup.config, setup.thresholds)
+        nets = frozenset(net for sensor in found for net in sensor.nets)
+        quick = QuickSolves(board, setup.config, setup.thresholds, electrode_nets=nets)
     measured = []
     for sensor in measure_each(board, found, selection):
         measured.append(sensor)
@@ -202,7 +209,7 @@ def with_baseline(report: Report, options: AuditOptions) -> Report:
 
 def _unsolved(sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetrics],
               options: AuditOptions) -> dict[str, str]:
-    return unsolved_reasons(sensors, metrics, options.precise)
+    return unsolved_reasons(sensors, metrics, mode=solve_mode(options))
 
 
 #: Why a sensor whose sense path was not followed gets no field result.

@@ -33,6 +33,7 @@ def options_from_args(args: argparse.Namespace) -> AuditOptions:
         touch_side=getattr(args, "touch_side", None), fail_on=getattr(args, "fail_on", None),
         solve=not getattr(args, "no_solve", False),
         precise=bool(getattr(args, "precise", False)),
+        quick=bool(getattr(args, "quick", False)),
         suggest=bool(getattr(args, "suggest", False)))
 
 

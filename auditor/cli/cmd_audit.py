@@ -17,6 +17,7 @@ from auditor.cli.options import (
     add_overlay,
     add_power,
     add_profile,
+    add_solve_mode,
     add_touch_side,
 )
 from auditor.cli.progress import ProgressCallback
@@ -42,9 +43,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
     parser.add_argument("--no-solve", action="store_true",
                         help="skip the field solve: layout rules only, every electrode "
                              "reported unsolved")
-    parser.add_argument("--precise", action="store_true",
-                        help="solve the real copper shapes in 3-D (slower); adds pad-to-pad "
-                             "coupling and slider response")
+    add_solve_mode(parser, "; adds pad-to-pad coupling and slider response")
     add_no_suggest(parser)
     add_report_options(parser)
 

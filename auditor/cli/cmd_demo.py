@@ -17,7 +17,7 @@ import textwrap
 from auditor.audit import run_audit
 from auditor.cli.audit_runner import gated_options, shown_as
 from auditor.cli.main import EXIT_CLEAN, EXIT_FINDINGS
-from auditor.cli.options import add_no_suggest
+from auditor.cli.options import add_no_suggest, add_solve_mode
 from auditor.cli.progress import ProgressCallback
 from auditor.cli.report_options import add_report_options, emit
 from auditor.demo import demo_board_path, demo_config_path
@@ -34,8 +34,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
     parser.add_argument("--path", action="store_true",
                         help="print where the demo board is installed and stop "
                              "(copy it to try the other commands)")
-    parser.add_argument("--precise", action="store_true",
-                        help="solve the real copper shapes in 3-D (slower)")
+    add_solve_mode(parser)
     add_no_suggest(parser)
     add_report_options(parser)
 

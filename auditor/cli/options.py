@@ -48,6 +48,19 @@ def add_touch_side(parser: _Adder) -> None:
                         help="which side of the board faces the finger")
 
 
+def add_solve_mode(parser: argparse.ArgumentParser, precise_help: str = "") -> None:
+    """``--precise`` / ``--quick``: force one field model for every electrode
+    (neither: the automatic mode picks one per electrode)."""
+    method = parser.add_mutually_exclusive_group()
+    method.add_argument("--precise", action="store_true",
+                        help="solve every electrode's real copper in 3-D (slower)"
+                             + precise_help)
+    method.add_argument("--quick", action="store_true",
+                        help="solve every electrode with the disk model (fastest); by default "
+                             "each electrode gets the disk model or the 3-D solve as its "
+                             "shape and surroundings need")
+
+
 def add_no_suggest(parser: _Adder) -> None:
     """``--no-suggest``: findings without the predicted fixes (faster)."""
     parser.add_argument("--no-suggest", dest="suggest", action="store_false",
@@ -56,4 +69,4 @@ def add_no_suggest(parser: _Adder) -> None:
 
 
 __all__ = ["PROFILE_HELP", "add_fail_on", "add_no_suggest", "add_overlay", "add_power",
-           "add_profile", "add_touch_side"]
+           "add_profile", "add_solve_mode", "add_touch_side"]

@@ -38,9 +38,9 @@ from auditor.field.pad_model import (
     finger_sheet,
     ground_sheets,
     left_out_films,
-    plane_sheets,
     reduced_network,
 )
+from auditor.field.sheets import plane_sheets
 from auditor.field.traces import TraceRunSpec, traces_pf
 
 __all__ = ["BoardLayer", "PadSetup", "PadSolve", "TraceRunSpec", "MutualSetup",

@@ -17,13 +17,10 @@ from auditor.field.axisym import AxisymModel, Sheet, solve_axisym, solve_axisym_
 from auditor.field.circuit import BODY_TO_EARTH_PF, DEVICE_TO_EARTH, touch_network
 from auditor.field.dielectric import BoardLayer, DielectricSlab
 from auditor.field.matrix import CapacitanceMatrix
+from auditor.field.sheets import coplanar_sheets, plane_sheets, profile_sheets
 from auditor.field.traces import TraceRunSpec
 from auditor.model.vocabulary import PadSide, PowerPreset
 
-#: Mesh length scale at hatch-ring edges, in pitches: about one or two cells
-#: per ring and per opening (measured in bench_field: as accurate as finer
-#: spacing against an eta = 0.05 run, and 35-45 % faster).
-_HATCH_SCALE = 3.0
 #: Ground ring / plane reach beyond the pad when not given (mm).
 DEFAULT_GROUND_MARGIN_MM = 10.0
 
@@ -56,6 +53,16 @@ class PadSetup:
         Sense trace runs and via count (they add to Cp, not to ΔC).
     ground_fill:
         Copper coverage of the coplanar ground.
+    plane_profile:
+        Coverage of the plane ring by ring, ``((outer_radius_mm, coverage), ...)``
+        from the centre out (empty: the plane is whole out to the ground's
+        outer radius). Each ring's copper becomes one annulus of that share of
+        the ring's width, centred in it, hatched like the plane if
+        ``plane_fill`` < 1 (:func:`profile_sheets`).
+    front_depth_mm, front_profile, front_fill, front_hatch_pitch_mm:
+        Copper between the pad and the finger (held at device ground), this
+        far above the pad, with its coverage ring by ring, fill and hatch
+        pitch as for the plane.
     """
 
     pad_area_mm2: float
@@ -78,6 +85,11 @@ class PadSetup:
     #: Copper coverage of the coplanar ground (1 = solid pour); a hatched pour
     #: is modelled like a hatched plane, with a solid border at the gap.
     ground_fill: float = 1.0
+    plane_profile: tuple[tuple[float, float], ...] = ()
+    front_depth_mm: float | None = None
+    front_profile: tuple[tuple[float, float], ...] = ()
+    front_fill: float = 1.0
+    front_hatch_pitch_mm: float = 1.5
 
     @property
     def pad_radius_mm(self) -> float:
@@ -116,6 +128,10 @@ def check_setup(setup: PadSetup) -> None:
             raise UsageError(f"{label} must be positive or none, got {maybe}")
     if not 0.0 <= setup.plane_fill <= 1.0:
         raise UsageError(f"plane fill must be within 0..1, got {setup.plane_fill}")
+    for label, profile in (("plane", setup.plane_profile), ("front", setup.front_profile)):
+        check_profile(label, profile)
+    if setup.front_profile and not (setup.front_depth_mm or 0.0) > 0:
+        raise UsageError("copper in front of the pad needs a positive height above it")
     if not 0.0 < setup.ground_fill <= 1.0:
         raise UsageError(f"coplanar ground fill must be within (0, 1], got {setup.ground_fill}")
     for label, value in {"overlay thickness": setup.overlay_mm, "air gap": setup.air_gap_mm,
@@ -133,6 +149,17 @@ def check_setup(setup: PadSetup) -> None:
     if setup.power not in DEVICE_TO_EARTH:
         raise UsageError(f"unknown power preset {setup.power!r}; choose one of "
                          f"{', '.join(DEVICE_TO_EARTH)}")
+
+
+def check_profile(label: str, profile: tuple[tuple[float, float], ...]) -> None:
+    """UsageError unless the rings' radii grow and each coverage is within 0..1."""
+    last = 0.0
+    for radius, coverage in profile:
+        if not radius > last:
+            raise UsageError(f"{label} profile radii must grow from 0, got {radius} after {last}")
+        if not 0.0 <= coverage <= 1.0:
+            raise UsageError(f"{label} profile coverage must be within 0..1, got {coverage}")
+        last = radius
 
 
 def ground_outer_mm(setup: PadSetup) -> float:
@@ -196,43 +223,6 @@ def dielectrics(setup: PadSetup) -> tuple[tuple[DielectricSlab, ...], float]:
     return tuple(layers), top + setup.overlay_mm
 
 
-def plane_sheets(depth_mm: float, radius_mm: float, fill: float,
-                 pitch_mm: float) -> tuple[Sheet, ...]:
-    """A solid plane disk, or rings of the same fill for a hatched plane."""
-    return _hatched(-depth_mm, 0.0, radius_mm, fill, pitch_mm)
-
-
-def _hatched(z_mm: float, inner_mm: float, outer_mm: float, fill: float,
-             pitch_mm: float) -> tuple[Sheet, ...]:
-    """Rings covering ``fill`` of each pitch from inner to outer radius."""
-    if fill >= 1.0:
-        return (Sheet("ground", z_mm, outer_mm, inner_mm),)
-    if fill <= 0.0:
-        return ()
-    width = fill * pitch_mm
-    sheets = []
-    start = inner_mm
-    while start < outer_mm - 1e-9:
-        centre = start + 0.5 * pitch_mm
-        inner, outer = max(centre - 0.5 * width, inner_mm), min(centre + 0.5 * width, outer_mm)
-        if outer > inner:
-            sheets.append(Sheet("ground", z_mm, outer, inner,
-                                edge_scale_mm=_HATCH_SCALE * pitch_mm))
-        start += pitch_mm
-    return tuple(sheets)
-
-
-def coplanar_sheets(inner_mm: float, outer_mm: float, fill: float,
-                    pitch_mm: float) -> tuple[Sheet, ...]:
-    """Coplanar ground: solid, or a solid border at the gap (a hatched pour's
-    outline, one hatch line wide) followed by rings of the same fill."""
-    if fill >= 1.0 or fill <= 0.0:
-        return _hatched(0.0, inner_mm, outer_mm, max(fill, 1.0), pitch_mm)
-    border = min(inner_mm + fill * pitch_mm, outer_mm)
-    return (Sheet("ground", 0.0, border, inner_mm),
-            *_hatched(0.0, border + 0.5 * (1.0 - fill) * pitch_mm, outer_mm, fill, pitch_mm))
-
-
 def ground_sheets(setup: PadSetup, inner_mm: float) -> tuple[Sheet, ...]:
     """Coplanar ring from ``inner_mm`` and the plane below, both on the ground net."""
     outer = ground_outer_mm(setup)
@@ -244,8 +234,13 @@ def ground_sheets(setup: PadSetup, inner_mm: float) -> tuple[Sheet, ...]:
                 and setup.plane_depth_mm > setup.board_mm + 1e-6):
             raise UsageError(f"plane depth {setup.plane_depth_mm} mm is below the board "
                              f"({setup.board_mm} mm thick)")
-        sheets += plane_sheets(setup.plane_depth_mm, outer, setup.plane_fill,
-                               setup.plane_hatch_pitch_mm)
+        sheets += (profile_sheets(-setup.plane_depth_mm, setup.plane_profile, setup.plane_fill,
+                                  setup.plane_hatch_pitch_mm) if setup.plane_profile
+                   else plane_sheets(setup.plane_depth_mm, outer, setup.plane_fill,
+                                     setup.plane_hatch_pitch_mm))
+    if setup.front_depth_mm is not None and setup.front_profile:
+        sheets += profile_sheets(setup.front_depth_mm, setup.front_profile, setup.front_fill,
+                                 setup.front_hatch_pitch_mm)
     return sheets
 
 

@@ -63,6 +63,8 @@ class PadMetrics:
     cp_pin_pf: float = 0.0
     cp_parts_pf: float = 0.0
     parts: tuple[LumpedPart, ...] = ()
+    #: Why this model answered (the automatic mode's test, or a forcing flag).
+    method_reason: str = ""
 
     @property
     def quick_difference(self) -> tuple[float, float] | None:

@@ -80,6 +80,17 @@ def method_table(console: Console, results: list[SensorResult]) -> None:
     console.print(table)
     print_note(console, "precise: 3-D solve of the real copper; quick: the pad as a disk "
                        "(axisymmetric)")
+    _reasons(console, solved)
+
+
+def _reasons(console: Console, solved: list[SensorResult]) -> None:
+    """Why each model answered, electrodes with the same reason on one line."""
+    by_reason: dict[str, list[str]] = {}
+    for r in solved:
+        if r.metrics is not None and r.metrics.method_reason:
+            by_reason.setdefault(r.metrics.method_reason, []).append(r.sensor.name)
+    for reason, names in by_reason.items():
+        print_note(console, f"{', '.join(names)}: {reason}")
 
 
 def strongest_pairs(extras: PreciseExtras) -> list[CrosstalkPair]:

@@ -79,8 +79,9 @@ def ratio_low(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
 @sensor_rule(
     "electrode-unsolved",
     title="Electrode not covered by the field solve",
-    fix="Run with --precise for loops, combs and other shapes far from a plate; otherwise "
-        "check the electrode's configuration (kind, nets) so the solver can model it.",
+    fix="Run without --quick (the automatic mode solves loops, combs and other shapes far "
+        "from a plate in 3-D) or with --precise; otherwise check the electrode's "
+        "configuration (kind, nets) so the solver can model it.",
     severity=Severity.WARNING,
 )
 def electrode_unsolved(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:

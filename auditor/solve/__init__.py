@@ -1,9 +1,11 @@
 """solve: from measured sensors to field-solver setups and back to metrics.
 
 The one place that translates a sensor into what :mod:`auditor.field`
-solves (``setup``: the quick model's pad; ``stack``, ``traces``: the board's
-layers and sense traces; ``precise``: the real copper in 3-D; ``mutual``:
-a tx/rx pair), runs the solves (``quick``, ``precise``, ``mutual``,
+solves (``stack``, ``traces``: the board's layers and sense traces;
+``shadows``: other nets' copper on the other layers, ring by ring;
+``setup``: the quick model's pad; ``route``: which model the automatic mode
+gives an electrode; ``precise``: the real copper in 3-D; ``mutual``: a
+tx/rx pair), runs the solves (``quick``, ``precise``, ``mutual``,
 ``extras`` for the board-level coupling table and slider scans) and turns
 the answers into :class:`auditor.model.results.PadMetrics`. ``dispatch`` is
 the entry: it picks the solve for each sensor. Modules import only those

@@ -2,7 +2,8 @@
 
 :func:`solve_sensors` dispatches every sensor to the quick solve
 (:mod:`auditor.solve.quick`), the 3-D solve (:mod:`auditor.solve.precise`)
-or the mutual pair model (:mod:`auditor.solve.mutual`), and
+or the mutual pair model (:mod:`auditor.solve.mutual`) — in the automatic
+mode as :func:`auditor.solve.route.route_for` decides — and
 :func:`unsolved_reasons` says why a sensor got no metrics. The audit entry
 (:mod:`auditor.audit`) calls only this module of the stage.
 """
@@ -11,6 +12,7 @@ from __future__ import annotations
 
 from collections.abc import Callable, Mapping
 from dataclasses import replace
+from typing import Literal
 
 from auditor.config import Config
 from auditor.errors import UsageError
@@ -21,6 +23,7 @@ from auditor.sensors.model import Sensor
 from auditor.solve.lumped import with_lumped_parts
 from auditor.solve.mutual import metrics_for_mutual, mutual_partner
 from auditor.solve.quick import QuickSolves, metrics_from_quick
+from auditor.solve.route import Route, forced, route_for
 from auditor.solve.setup import FieldInput, pad_setup_for, quick_unfit_reason
 
 Progress = Callable[[str, int, int], None]
@@ -45,8 +48,12 @@ class _InOrder:
                                len(self._sensors))
 
 
+Mode = Literal["auto", "quick", "precise"]
+MODES: tuple[Mode, ...] = ("auto", "quick", "precise")
+
+
 def _precise_or_quick(sensor: Sensor, board: Board, config: Config, mapped: FieldInput,
-                      sensors: tuple[Sensor, ...]) -> PadMetrics:
+                      sensors: tuple[Sensor, ...], quick: PadMetrics | None) -> PadMetrics:
     """The precise metrics, or the quick ones with the reason when the 3-D
     model cannot take this electrode (e.g. a layer missing from the stackup)."""
     # Imported here for start-up speed only: the 3-D solver loads
@@ -54,63 +61,109 @@ def _precise_or_quick(sensor: Sensor, board: Board, config: Config, mapped: Fiel
     from auditor.solve.precise import metrics_from_precise
 
     try:
-        return metrics_from_precise(sensor, board, config, mapped, sensors)
+        return metrics_from_precise(sensor, board, config, mapped, sensors,
+                                    quick_estimate=quick)
     except (UsageError, KeyError) as exc:
-        quick = metrics_from_quick(mapped)
-        return replace(quick, notes=(f"precise solve not possible ({exc}); quick "
-                                     "estimate shown",) + quick.notes)
+        fallback = quick or metrics_from_quick(mapped)
+        return replace(fallback, notes=(f"precise solve not possible ({exc}); quick "
+                                        "estimate shown",) + fallback.notes,
+                       method_reason=f"3-D solve not possible ({exc})")
 
 
 def unsolved_reasons(sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetrics],
-                     precise: bool = False) -> dict[str, str]:
+                     precise: bool = False, mode: Mode | None = None) -> dict[str, str]:
     """For each electrode the field step left without metrics, why."""
+    mode = mode or ("precise" if precise else "auto")
     reasons: dict[str, str] = {}
     for sensor in sensors:
         if sensor.name in metrics:
             continue
-        reason = "" if precise else quick_unfit_reason(sensor)
+        reason = quick_unfit_reason(sensor) if mode == "quick" else ""
         if not reason and sensor.kind == "mutual-tx":
             reason = "transmit electrode: its pair's receive electrode carries Cm"
         reasons[sensor.name] = reason or "no field model for this electrode"
     return reasons
 
 
+def _routes(sensors: tuple[Sensor, ...], quick: QuickSolves, board: Board, config: Config,
+            limits: Mapping[str, float | int | bool], mode: Mode
+            ) -> dict[str, tuple[Route, FieldInput]]:
+    """Model and pad setup of every self-capacitance electrode."""
+    out: dict[str, tuple[Route, FieldInput]] = {}
+    for sensor in sensors:
+        if sensor.kind not in SELF_KINDS or sensor.area_mm2 <= 0:
+            continue
+        mapped = quick.mapped(sensor.name) or pad_setup_for(
+            sensor, board, config, limits, frozenset(n for s in sensors for n in s.nets))
+        route = route_for(sensor, mapped)
+        out[sensor.name] = (route if mode == "auto" else forced(route, mode), mapped)
+    return out
+
+
 def solve_sensors(board: Board, sensors: tuple[Sensor, ...], config: Config, *,
                   precise: bool = False, progress: Progress | None = None,
                   thresholds: Mapping[str, float | int | bool] | None = None,
-                  quick: QuickSolves | None = None) -> dict[str, PadMetrics]:
-    """Field metrics per sensor name (``method`` "quick" or "precise").
+                  quick: QuickSolves | None = None, mode: Mode | None = None
+                  ) -> dict[str, PadMetrics]:
+    """Field metrics per sensor name (``method`` "quick" or "precise", and
+    ``method_reason``).
 
-    Self-capacitance electrodes (button, slider, wheel, proximity) are
-    solved; a mutual receive electrode gets the Cm of its pair; a
-    transmit electrode, a loop the quick disk model cannot represent
-    (:func:`quick_unfit_reason`), or a sensor that cannot be mapped, gets no
-    entry (the report shows it unsolved; :func:`unsolved_reasons` says why)
-    — nothing is made up. The quick solves run first, each distinct setup
-    once; ``quick`` holds them when they were started while measuring.
-    ``progress`` is called as ``progress(sensor_name, done, total)``, in
-    sensor order.
+    ``mode``: "auto" (the default; ``precise=True`` means "precise") gives
+    each self-capacitance electrode the model :func:`route_for` picks;
+    "quick" and "precise" force one model. A mutual receive electrode gets
+    the Cm of its pair; a transmit electrode, a loop in the quick mode, or a
+    sensor that cannot be mapped gets no entry (the report shows it
+    unsolved; :func:`unsolved_reasons` says why) — nothing is made up. The
+    quick solves run first, each distinct setup once; ``quick`` holds them
+    when they were started while measuring. The electrodes routed to 3-D
+    are solved after them, together (:func:`_precise_all`). ``progress`` is
+    called as ``progress(sensor_name, done, total)``, in sensor order.
     """
     limits = thresholds or {}
+    mode = mode or ("precise" if precise else "auto")
     in_order = _InOrder(sensors, progress)
-    out: dict[str, PadMetrics] = {}
-    if not precise:
-        quick = quick or QuickSolves(board, config, limits)
+    nets = frozenset(n for s in sensors for n in s.nets)
+    quick = quick or QuickSolves(board, config, limits, electrode_nets=nets)
+    if mode != "precise":
         for sensor in sensors:
             quick.add(sensor)  # those added while measuring are not added again
-        out = quick.metrics(in_order.finish)
+    routes = _routes(sensors, quick, board, config, limits, mode)
+    to_3d = {name for name, (route, _) in routes.items() if route.method == "precise"}
+    out = quick.metrics(lambda name: None if name in to_3d else in_order.finish(name))
+    out.update(_precise_all(sensors, to_3d, routes, out, board, config))
     for sensor in sensors:
-        if sensor.name in out:
-            pass
-        elif precise and sensor.kind in SELF_KINDS and sensor.area_mm2 > 0:
-            mapped = pad_setup_for(sensor, board, config, limits)
-            out[sensor.name] = _precise_or_quick(sensor, board, config, mapped, sensors)
-        elif sensor.kind == "mutual-rx":
+        if sensor.kind == "mutual-rx":
             tx = mutual_partner(sensor, sensors)
             if tx is not None:
-                out[sensor.name] = metrics_for_mutual(sensor, tx, board, config, limits)
+                out[sensor.name] = replace(
+                    metrics_for_mutual(sensor, tx, board, config, limits),
+                    method_reason=MUTUAL_REASON)
+        elif sensor.name in routes and sensor.name in out and not out[sensor.name].method_reason:
+            out[sensor.name] = replace(out[sensor.name],
+                                       method_reason=routes[sensor.name][0].reason)
         in_order.finish(sensor.name)
     return with_lumped_parts(out, sensors, board, limits)
 
 
-__all__ = ["Progress", "QuickSolves", "solve_sensors", "unsolved_reasons"]
+#: The mutual pair has no 3-D solve in the audit yet.
+MUTUAL_REASON = "disk and ring model of the pair (no 3-D solve of mutual pairs)"
+
+
+def _precise_all(sensors: tuple[Sensor, ...], names: set[str],
+                 routes: Mapping[str, tuple[Route, FieldInput]],
+                 quick: Mapping[str, PadMetrics], board: Board,
+                 config: Config) -> dict[str, PadMetrics]:
+    """The electrodes routed to 3-D, solved one after the other on the shared
+    stack (the quick estimate of each, when there is one, goes in its notes)."""
+    out = {}
+    for sensor in sensors:
+        if sensor.name in names:
+            route, mapped = routes[sensor.name]
+            metrics = _precise_or_quick(sensor, board, config, mapped, sensors,
+                                        quick.get(sensor.name))
+            out[sensor.name] = metrics if metrics.method_reason else replace(
+                metrics, method_reason=route.reason)
+    return out
+
+
+__all__ = ["MODES", "Mode", "Progress", "QuickSolves", "solve_sensors", "unsolved_reasons"]

@@ -4,9 +4,10 @@ Per electrode the conductors are its own copper, the device ground's copper
 (every copper layer) and the other electrodes within a window of the pad's
 bounding box plus :data:`WINDOW_MARGIN_MM`, clipped to it, and for the touch
 solve the finger disk over the electrode's centroid on the touch surface.
-Other electrodes in the window are held at device-ground potential (a
-self-capacitance controller grounds or shields the inactive inputs; stated
-choice). Other nets' copper is left out. The dielectric stack is the board's
+Other electrodes and every other net's copper in the window (signals on
+any layer) are held at device-ground potential (a self-capacitance
+controller grounds or shields the inactive inputs, a driven signal is a
+low-impedance node; stated choice). The dielectric stack is the board's
 stackup from the touch side plus air gap and overlay
 (:class:`auditor.field.precise.LayeredMedium`, air half-spaces above and
 below). Baseline and touch are separate solves, reduced by the same circuit
@@ -39,6 +40,7 @@ from auditor.field.traces import traces_pf
 from auditor.model.board import Board
 from auditor.model.results import PadMetrics
 from auditor.sensors.model import Sensor
+from auditor.sensors.spatial import pieces_in
 from auditor.solve.setup import FieldInput
 from auditor.solve.stack import overlay_with_mask, touch_mask
 
@@ -160,6 +162,10 @@ def pad_conductors(sensor: Sensor, board: Board, stack: PreciseStack,
         if other.name != sensor.name and other.geometry.intersects(window):
             held.setdefault(other.layer, []).append(other.geometry)
     ground_net = sensor.surroundings.ground_net if sensor.surroundings else ""
+    own = {*sensor.nets, ground_net}
+    for layer in stack.copper_levels:
+        pieces = pieces_in(board, layer, window, lambda item: item.net not in own)
+        held.setdefault(layer, []).extend(piece.geometry for piece in pieces)
     pad = Conductor(PAD, sensor.geometry, stack.copper_levels[sensor.layer])
     clear = {sensor.layer: sensor.geometry}
     return [pad, *ground_conductors(board, stack, ground_net, window, held, clear)]
@@ -167,10 +173,12 @@ def pad_conductors(sensor: Sensor, board: Board, stack: PreciseStack,
 
 def metrics_from_precise(sensor: Sensor, board: Board, config: Config, mapped: FieldInput,
                          others: tuple[Sensor, ...] = (),
-                         cell_mm: float | None = None) -> PadMetrics:
+                         cell_mm: float | None = None,
+                         quick_estimate: PadMetrics | None = None) -> PadMetrics:
     """One electrode's metrics from the 3-D solve, the quick estimate in the notes.
 
-    ``cell_mm`` defaults to :func:`cell_for` (0.5 mm, finer for tight gaps).
+    ``cell_mm`` defaults to :func:`cell_for` (0.5 mm, finer for tight gaps);
+    ``quick_estimate``: the quick metrics when already solved (else solved here).
     """
     setup = mapped.setup
     cell_mm = cell_mm or cell_for(sensor)
@@ -187,9 +195,10 @@ def metrics_from_precise(sensor: Sensor, board: Board, config: Config, mapped: F
                                       setup.plane_depth_mm)
     total = cp_pad + cp_trace
     delta = cp_touched - cp_pad
-    quick = _quick_estimate(setup)
+    quick = quick_estimate or _quick_estimate(setup)
     notes = (f"precise: real copper, {cell_mm:g} mm cells, window pad + "
-             f"{WINDOW_MARGIN_MM:g} mm; other electrodes held at ground",
+             f"{WINDOW_MARGIN_MM:g} mm; other electrodes and other nets' copper held at "
+             "ground",
              _versus("Cp pad", cp_pad, quick.cp_pad_pf),
              _versus("ΔC", delta, quick.delta_c_pf), *_cell_notes(sensor, cell_mm),
              *stack.notes, *mapped.notes, *trace_notes)

@@ -37,8 +37,10 @@ class QuickSolves:
 
     def __init__(self, board: Board, config: Config,
                  thresholds: Mapping[str, float | int | bool] | None = None,
-                 workers: int | None = None) -> None:
+                 workers: int | None = None,
+                 electrode_nets: frozenset[str] = frozenset()) -> None:
         self._board, self._config, self._limits = board, config, thresholds or {}
+        self._electrode_nets = electrode_nets
         self._batch = PadBatch(workers)
         self._mapped: dict[str, FieldInput] = {}
 
@@ -47,9 +49,14 @@ class QuickSolves:
         if (sensor.kind not in SELF_KINDS or sensor.area_mm2 <= 0 or sensor.name in self._mapped
                 or quick_unfit_reason(sensor)):
             return
-        mapped = pad_setup_for(sensor, self._board, self._config, self._limits)
+        mapped = pad_setup_for(sensor, self._board, self._config, self._limits,
+                               self._electrode_nets)
         self._mapped[sensor.name] = mapped
         self._batch.add(mapped.setup)
+
+    def mapped(self, name: str) -> FieldInput | None:
+        """The pad setup of an added sensor (None if it was not added)."""
+        return self._mapped.get(name)
 
     def metrics(self, finished: Callable[[str], None] | None = None) -> dict[str, PadMetrics]:
         """Metrics of every sensor added, by name; ``finished`` is called

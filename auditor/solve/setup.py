@@ -21,9 +21,13 @@ Choices made here (each also stated in the notes of the pad it affects):
 * **Ground reach**: the ring and plane extend 10 mm beyond the gap (the
   solver's default), or less when the device ground has less copper than
   that annulus (a small battery device).
-* **Plane below**: the nearest shadow on another layer; its fill is the
-  shadowed fraction times the hatch fill, depth is the dielectric
-  thickness between the layers from the stackup (zero-thickness copper).
+* **Plane below**: the nearest other layer behind the pad with other nets'
+  copper within the ground's reach, as its coverage ring by ring around
+  the pad's centroid (:mod:`auditor.solve.shadows`); a layer covered
+  everywhere is the whole plane of the hatch's fill. Depth is the
+  dielectric thickness between the layers from the stackup
+  (zero-thickness copper). Copper between the pad and the touch face (a
+  far-side electrode under a pour) is modelled the same way in front.
 * **Rounding**: areas to 3 significant figures, gaps to 2, fills to steps
   of 0.05, depths to 1 µm, before the solve, so pads that differ only by
   polygonised-arc noise (1.999 vs 2.004 mm gaps) or by a hatch's local
@@ -45,13 +49,10 @@ from auditor.field.api import PadSetup
 from auditor.field.pad_model import DEFAULT_GROUND_MARGIN_MM
 from auditor.model.board import Board
 from auditor.model.vocabulary import PadSide
-from auditor.sensors.model import LayerShadow, Sensor
+from auditor.sensors.model import Sensor
+from auditor.solve.shadows import LayerCopper, describe, layer_copper, measured_fill
 from auditor.solve.stack import board_layers_from_touch, overlay_with_mask, touch_mask
-from auditor.solve.traces import dielectric_between_mm, trace_runs_for
-
-#: A shadow covering less than this share of the pad is left out of the model
-#: (common practice, no source: the copper-under-electrode rule reports it).
-PLANE_MIN_SHADOW = 0.1
+from auditor.solve.traces import trace_runs_for
 
 #: Finger disk when the profile sets no ``finger_diameter_mm``: physics.md §3,
 #: a conductive disk of 8-10 mm flat on the overlay (touchscreen contact
@@ -66,6 +67,8 @@ class FieldInput:
 
     setup: PadSetup
     notes: tuple[str, ...]
+    #: Other nets' copper on the other layers (what the automatic mode reads).
+    coppers: tuple[LayerCopper, ...] = ()
 
 
 def significant(value: float, digits: int = 3) -> float:
@@ -78,14 +81,6 @@ def significant(value: float, digits: int = 3) -> float:
 def fill_step(value: float) -> float:
     """A copper fill ratio in steps of 0.05, never below 0.05."""
     return max(0.05, round(20.0 * min(value, 1.0)) / 20.0)
-
-
-def _plane(sensor: Sensor) -> LayerShadow | None:
-    if sensor.surroundings is None:
-        return None
-    planes = [s for s in sensor.surroundings.shadows
-              if s.fill != "none" and s.shadowed_fraction >= PLANE_MIN_SHADOW]
-    return min(planes, key=lambda s: (s.depth_mm, s.layer)) if planes else None
 
 
 def _ground_gap(sensor: Sensor, notes: list[str]) -> float | None:
@@ -148,27 +143,77 @@ def _side(sensor: Sensor, board: Board, config: Config,
     return "touch" if sensor.layer == touch_layer else "far"
 
 
+def _other_layers(board: Board, sensor: Sensor, config: Config, outer_mm: float,
+                  electrode_nets: frozenset[str]) -> tuple[LayerCopper, ...]:
+    """Other nets' copper on every other copper layer, nearest first; layers
+    between the electrode and the touch face are ``in_front``."""
+    layers = board.copper_layers
+    if sensor.layer not in layers:
+        return ()
+    index = layers.index(sensor.layer)
+    out = []
+    for k, layer in enumerate(layers):
+        if layer != sensor.layer:
+            front = k < index if config.touch_side == "front" else k > index
+            out.append(layer_copper(board, sensor, layer, outer_mm, electrode_nets, front))
+    return tuple(sorted(out, key=lambda c: (c.depth_mm, c.layer)))
+
+
+def _plane_fields(behind: LayerCopper | None, sensor: Sensor) -> dict[str, object]:
+    """Plane depth, fill and ring profile of the PadSetup from the nearest copper behind."""
+    if behind is None:
+        return {}
+    hatch = measured_fill(sensor.surroundings.shadows if sensor.surroundings else (), behind)
+    fields: dict[str, object] = {"plane_depth_mm": behind.depth_mm,
+                                 "plane_fill": fill_step(hatch) if hatch < 1.0 else 1.0}
+    if not behind.whole:
+        fields["plane_profile"] = behind.profile
+    return fields
+
+
+def _front_fields(front: LayerCopper | None, board: Board,
+                  sensor: Sensor) -> dict[str, object]:
+    """Copper between electrode and finger: height, coverage per ring, hatch."""
+    if front is None:
+        return {}
+    return {"front_depth_mm": front.depth_mm, "front_profile": front.profile,
+            "front_fill": fill_step(front.hatch_fill) if front.hatch_fill < 1.0 else 1.0,
+            "front_hatch_pitch_mm": hatch_pitch_mm(board, sensor, front.layer)}
+
+
+def _copper_notes(coppers: tuple[LayerCopper, ...], notes: list[str]) -> None:
+    for copper in coppers:
+        if not copper.empty:
+            notes.append(describe(copper))
+    held = {name for c in coppers if not c.empty for name, _, _ in c.classes} - {"ground"}
+    if held:
+        notes.append(f"{' and '.join(sorted(held))} on other layers held at the device ground "
+                     "for Cp (an idle input is grounded, a driven signal is a low-impedance "
+                     "node; stated approximation)")
+    behind = [c for c in coppers if not c.in_front and not c.empty]
+    if len(behind) > 1:
+        notes.append(f"only the nearest copper behind the pad ({behind[0].layer}) is modelled")
+
+
 def pad_setup_for(sensor: Sensor, board: Board, config: Config,
-                  thresholds: Mapping[str, float | int | bool] | None = None) -> FieldInput:
+                  thresholds: Mapping[str, float | int | bool] | None = None,
+                  electrode_nets: frozenset[str] = frozenset()) -> FieldInput:
     """The :class:`PadSetup` of one self-capacitance sensor and its notes.
 
-    Returns a :class:`FieldInput` (setup + notes) rather than the bare setup
-    so every approximation travels with the numbers into the report.
+    Returns a :class:`FieldInput` (setup + notes + the copper on the other
+    layers) rather than the bare setup so every approximation travels with
+    the numbers into the report. ``electrode_nets`` (other electrodes' nets)
+    only name what the copper on other layers is.
     """
     notes: list[str] = []
     side = _side(sensor, board, config, notes)
     gap = _ground_gap(sensor, notes)
-    plane = _plane(sensor)
-    if plane is not None and side == "far":
-        notes.append(f"copper on {plane.layer} between electrode and finger not modelled")
-        plane = None
-    depth = fill = None
-    if plane is not None:
-        depth = round(dielectric_between_mm(board, sensor.layer, plane.layer), 3)
-        fill = fill_step(min(plane.shadowed_fraction, 1.0) * plane.fill_ratio)
-        if plane.shadowed_fraction < 0.99:
-            notes.append(f"plane on {plane.layer} under {plane.shadowed_fraction:.0%} of "
-                         "the pad: modelled as a full plane of proportionally lower fill")
+    outer = (_ground_outer_mm(sensor, gap, True) or math.sqrt(sensor.area_mm2 / math.pi)
+             + (gap or 0.0) + DEFAULT_GROUND_MARGIN_MM)
+    coppers = _other_layers(board, sensor, config, outer, electrode_nets)
+    behind = next((c for c in coppers if not c.in_front and not c.empty), None)
+    front = next((c for c in coppers if c.in_front and not c.empty), None)
+    _copper_notes(coppers, notes)
     finger = _finger_mm(config, thresholds or {})
     notes.append(f"finger {finger:g} mm disk ({FINGER_ORIGIN})"
                  if finger == DEFAULT_FINGER_MM else f"finger {finger:g} mm disk (profile)")
@@ -178,17 +223,17 @@ def pad_setup_for(sensor: Sensor, board: Board, config: Config,
     notes += trace_notes
     setup = PadSetup(
         pad_area_mm2=significant(sensor.area_mm2), gap_mm=gap,
-        ground_outer_mm=_ground_outer_mm(sensor, gap, depth is not None),
-        plane_depth_mm=depth if fill else None, plane_fill=fill if fill else 1.0,
-        plane_hatch_pitch_mm=hatch_pitch_mm(board, sensor, plane.layer if plane else None),
+        ground_outer_mm=_ground_outer_mm(sensor, gap, behind is not None),
+        plane_hatch_pitch_mm=hatch_pitch_mm(board, sensor, behind.layer if behind else None),
         ground_fill=fill_step(sensor.surroundings.ground_fill_ratio)
         if gap is not None and sensor.surroundings else 1.0,
         board_layers=board_layers_from_touch(board, config, sensor.layer), pad_side=side,
         overlay_mm=overlay_mm, overlay_er=overlay_er, air_gap_mm=round(config.air_gap_mm, 3),
         finger_diameter_mm=finger, power=config.power, traces=runs,
         vias=sensor.path.vias if sensor.path else 0)
+    setup = replace(setup, **_plane_fields(behind, sensor), **_front_fields(front, board, sensor))  # type: ignore[arg-type]
     snapped = snapped_to_finger(setup, notes)
-    return FieldInput(snapped, tuple(notes))
+    return FieldInput(snapped, tuple(notes), coppers)
 
 
 #: Pad or ring edges closer than this to the finger's edge (at another
@@ -231,7 +276,8 @@ def quick_unfit_reason(sensor: Sensor) -> str:
     if filled > 0 and sensor.area_mm2 / filled < MIN_OUTLINE_FILL:
         share = sensor.area_mm2 / filled
         return (f"copper fills only {share:.0%} of its outline (a loop or comb): an "
-                "equal-area disk does not represent it; run with --precise")
+                "equal-area disk does not represent it; the automatic mode or --precise solves "
+                "it in 3-D")
     return ""
 
 

@@ -76,7 +76,11 @@ def test_solid_pour_costs_ratio(demo_json: dict) -> None:  # type: ignore[type-a
 
 
 def test_weak_buttons_rank_last(demo_json: dict) -> None:  # type: ignore[type-arg]
-    ranks = {s["name"]: s["rank"] for s in demo_json["sensors"] if s["rank"]}
+    # Among the touch electrodes: the proximity loop (solved in 3-D by the
+    # automatic mode) senses a hand at a distance, its touch ΔC is not
+    # comparable with a button's.
+    ranks = {s["name"]: s["rank"] for s in demo_json["sensors"]
+             if s["rank"] and s["kind"] != "proximity"}
     worst_two = sorted(ranks, key=lambda n: ranks[n])[-2:]
     assert set(worst_two) == {"BTN1", "BTN2"}
 

@@ -84,7 +84,8 @@ def sample_results() -> tuple[SensorResult, ...]:
             continue
         pad, trace, delta, strength, rank = _METRICS[sensor.name]
         total = pad + trace
-        metrics = PadMetrics(pad, trace, total, delta, delta / total)
+        metrics = PadMetrics(pad, trace, total, delta, delta / total,
+                             method_reason="disk model (sample text)")
         out.append(SensorResult(sensor, metrics, rank, strength))
     return tuple(out)
 
@@ -270,6 +271,7 @@ def precise_results() -> tuple[SensorResult, ...]:
         pad, delta = _QUICK[r.sensor.name]
         metrics = dataclasses.replace(
             r.metrics, method="precise", notes=("precise: real copper (sample text)",),
+            method_reason="3-D: forced (sample text)",
             quick_cp_pad_pf=pad, quick_cp_total_pf=pad + r.metrics.cp_trace_pf,
             quick_delta_c_pf=delta)
         out.append(dataclasses.replace(r, metrics=metrics))

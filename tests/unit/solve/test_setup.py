@@ -118,7 +118,9 @@ def test_touch_from_back_moves_pad_to_far_side(boards) -> None:  # type: ignore[
     # the F.Mask is now between the finger side and ... the far-side pad's own face:
     # listed from the touch side (B.Mask first), the pad's own mask left out
     assert [layer.thickness_mm for layer in mapped.setup.board_layers] == [0.01, 1.51]
-    assert any("not modelled" in note for note in mapped.notes)
+    # the copper now between electrode and finger is modelled in front of the pad
+    assert mapped.setup.front_depth_mm is not None and mapped.setup.front_profile
+    assert any("in front of the pad" in note for note in mapped.notes)
 
 
 def test_mutual_pair_maps_to_disk_and_ring(boards, monkeypatch) -> None:  # type: ignore[no-untyped-def]

@@ -42,12 +42,13 @@ def test_reasons_only_for_unsolved_electrodes() -> None:
     plate = Point(50, 0).buffer(5)
     sensors = (_sensor("BTN", plate), _sensor("PROX", ring, "proximity"))
     solved = {"BTN": PadMetrics(1.0, 0.5, 1.5, 0.2, 0.13)}
-    reasons = unsolved_reasons(sensors, solved)
+    reasons = unsolved_reasons(sensors, solved, mode="quick")
     assert set(reasons) == {"PROX"}
     assert "loop or comb" in reasons["PROX"]
     # In precise mode the shape is solved as drawn: a missing result is not
     # blamed on the disk model.
     assert "loop" not in unsolved_reasons(sensors, solved, precise=True)["PROX"]
+    assert "loop" not in unsolved_reasons(sensors, solved, mode="auto")["PROX"]
 
 
 @pytest.mark.slow
