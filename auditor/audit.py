@@ -224,6 +224,18 @@ def _precise_extras(board: Board, sensors: tuple[Sensor, ...],
     return precise_extras(board, sensors, setup.config)
 
 
+def shown_path(path: str) -> str:
+    """``path`` relative to the working folder when inside it, else as it is
+    (a configuration found by walking up is known by its absolute path)."""
+    if not path or not Path(path).is_absolute():
+        return path
+    try:
+        relative = Path(path).relative_to(Path.cwd())
+    except ValueError:
+        return path
+    return relative.as_posix()
+
+
 def build_report(board: Board, sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetrics],
                  setup: AuditSetup, extras: PreciseExtras | None = None,
                  unsolved: Mapping[str, str] | None = None) -> Report:
@@ -242,7 +254,8 @@ def build_report(board: Board, sensors: tuple[Sensor, ...], metrics: Mapping[str
                      tool_version=__version__, profile=setup.profile.name,
                      overlay=config.describe_overlay(), touch_side=config.touch_side,
                      power=config.power, fail_on=config.fail_on,
-                     max_ratio_loss=float(setup.thresholds.get("max_ratio_loss", 0.2))),
+                     max_ratio_loss=float(setup.thresholds.get("max_ratio_loss", 0.2)),
+                     config_path=shown_path(config.source)),
         sensors=_sensor_results(sensors, metrics, setup.thresholds),
         findings=decision.findings,
         rules=tuple(RuleInfo(s.rule_id, s.title, s.rationale, s.fix, s.severity)

@@ -24,6 +24,10 @@ from auditor.errors import UsageError
 CONFIG_NAMES: tuple[str, ...] = ("padaudit.toml", "pyproject.toml")
 
 
+#: Name prefix of the temporary folders holding copies at a revision.
+_MIRROR_PREFIX = "padaudit-rev-"
+
+
 def run_git(args: Sequence[str], cwd: str | Path) -> bytes:
     """Run ``git *args`` in ``cwd`` and return its stdout.
 
@@ -111,13 +115,22 @@ def board_at(file: str | Path, rev: str) -> Iterator[Path]:
         When the board does not exist at that revision.
     """
     where, content = _board_blob(file, rev)
-    with tempfile.TemporaryDirectory(prefix="padaudit-rev-") as tmp:
+    with tempfile.TemporaryDirectory(prefix=_MIRROR_PREFIX) as tmp:
         mirror = Path(tmp)
         for extra in companions(where.path):
             data = blob(where.root, rev, extra)
             if data is not None:
                 _write(mirror, extra, data)
         yield _write(mirror, where.path, content)
+
+
+def mirror_root(copy: Path) -> Path:
+    """The temporary folder holding a copy made by :func:`board_at` (the
+    repository's top folder in the copy)."""
+    for folder in copy.parents:
+        if folder.name.startswith(_MIRROR_PREFIX):
+            return folder
+    return copy.parent
 
 
 def check_board_at(file: str | Path, rev: str) -> None:

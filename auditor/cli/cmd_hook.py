@@ -95,7 +95,7 @@ def _audit_staged(args: argparse.Namespace, cwd: Path) -> list[tuple[str, int]]:
     results = []
     for path in boards:
         with board_at(root / Path(*path.parts), "") as copy:
-            report = shown_as(audit(str(copy)), f"{path} (staged)")
+            report = shown_as(audit(str(copy)), f"{path} (staged)", copy, "{} (staged)")
         results.append((str(path), _show(report)))
     return results
 

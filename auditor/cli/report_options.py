@@ -13,14 +13,20 @@ import os
 import sys
 from collections.abc import Mapping
 from pathlib import Path
-from typing import TextIO
+from typing import TYPE_CHECKING, TextIO
 
 from auditor.cli.audit_runner import AuditFn, auditor_for, shown_as
 from auditor.cli.colour import COLOUR_CHOICES, use_colour
+from auditor.cli.confirm import confirm_written
 from auditor.decide.records import Report
+from auditor.decide.summary import summarize
 from auditor.errors import UsageError
 from auditor.report.render import FORMATS, render
+from auditor.report.summary_line import render_summary
 from auditor.report.text import ORDERS
+
+if TYPE_CHECKING:  # the comparison is loaded only for --against
+    from auditor.decide.diff import ReportDiff
 
 
 def add_report_options(parser: argparse.ArgumentParser) -> None:
@@ -37,7 +43,8 @@ def add_report_options(parser: argparse.ArgumentParser) -> None:
     group.add_argument("--color", "--colour", dest="color", choices=COLOUR_CHOICES,
                        default="auto", help="colour in the terminal report (default: auto)")
     group.add_argument("-q", "--quiet", action="store_true",
-                       help="no progress bar, and no summary line when the report goes to --output")
+                       help="no progress bar, no 'wrote FILE' lines, and no verdict line "
+                            "unless the text report is on the terminal")
     group.add_argument("--order", choices=ORDERS, default="weakest",
                        help="electrode table order: weakest first or by rank")
     gate = parser.add_argument_group("gate")
@@ -59,16 +66,26 @@ def _write_file(path: str, text: str) -> None:
         raise UsageError(f"{path}: cannot write: {exc.strerror or exc}") from None
 
 
-def _write_baseline(report: Report, path: str) -> None:
+def _write_baseline(report: Report, path: str, quiet: bool) -> None:
     """Record the report's findings (the audit accepted them all already)."""
     # Imported here, as the picture and the diff below: most runs use none
     # of them, and every import costs start-up time.
     from auditor.decide.baseline import Baseline, dumps
 
+    baseline = Baseline.of(report.findings)
+    _write_file(path, dumps(baseline))
+    entries = len(baseline.counts)
+    confirm_written(path, f"{entries} entr{'y' if entries == 1 else 'ies'}", quiet=quiet)
+
+
+def _write_svg(report: Report, path: str, quiet: bool) -> None:
+    from auditor.report.svg import write_svg
+
     try:
-        Path(path).write_text(dumps(Baseline.of(report.findings)), encoding="utf-8")
+        write_svg(_with_board(report), path)
     except OSError as exc:
         raise UsageError(f"{path}: cannot write: {exc.strerror}") from None
+    confirm_written(path, quiet=quiet)
 
 
 def _with_board(report: Report) -> Report:
@@ -81,25 +98,39 @@ def _with_board(report: Report) -> Report:
     return dataclasses.replace(report, board=read_board(report.info.board_path))
 
 
-def _against(report: Report, args: argparse.Namespace, audit: AuditFn | None,
-             stdout: TextIO, colour: bool) -> int:
+def _against(report: Report, args: argparse.Namespace, audit: AuditFn | None) -> ReportDiff:
     from auditor.decide.diff import compare_reports
     from auditor.gitrev import board_at, locate
-    from auditor.report.diff_render import render_diff
 
     audit = audit or auditor_for(args)
     board = report.info.board_path
     with board_at(board, args.against) as old_copy:
-        old = shown_as(audit(str(old_copy)), f"{args.against}:{locate(board).path}")
-    diff = compare_reports(old, report)
-    stdout.write("\n")
-    render_diff(diff, "text", stdout, colour)
-    return diff.exit_code
+        old = shown_as(audit(str(old_copy)), f"{args.against}:{locate(board).path}",
+                       old_copy, f"{args.against}:{{}}")
+    return compare_reports(old, report)
+
+
+def _write_outputs(report: Report, args: argparse.Namespace) -> None:
+    """The files asked for: baseline, picture, report; each confirmed on stderr."""
+    quiet = bool(getattr(args, "quiet", False))
+    if getattr(args, "write_baseline", None):
+        _write_baseline(report, args.write_baseline, quiet)
+    if getattr(args, "svg", None):
+        _write_svg(report, args.svg, quiet)
+    if getattr(args, "output", None):
+        import io
+
+        buffer = io.StringIO()
+        render(report, getattr(args, "format", "text"), buffer, False, order=getattr(args, "order", "weakest"))
+        _write_file(args.output, buffer.getvalue())
+        confirm_written(args.output, quiet=quiet)
 
 
 def emit(report: Report, args: argparse.Namespace, *, audit: AuditFn | None = None,
-         stdout: TextIO | None = None, env: Mapping[str, str] | None = None) -> int:
-    """Write the baseline file and every requested output, return the exit code.
+         stdout: TextIO | None = None, env: Mapping[str, str] | None = None,
+         demo: bool = False) -> int:
+    """Write the baseline file and every requested output, end with the
+    run's one verdict line, and return the exit code that line states.
 
     Parameters
     ----------
@@ -110,49 +141,45 @@ def emit(report: Report, args: argparse.Namespace, *, audit: AuditFn | None = No
     audit:
         For ``--against``: how to audit the old board (default: the audit
         with the same options).
+    demo:
+        The bundled demo: the verdict line says the demo exits 0 (the
+        caller returns that) and what an audit would return.
+
+    Notes
+    -----
+    The verdict line goes to stdout after a text report there, else to stdout
+    when the report went to ``--output``, else (a machine format on stdout)
+    to stderr; ``-q`` leaves it out except after a text report on stdout.
     """
     out = stdout or sys.stdout
     environment = os.environ if env is None else env
-    fmt, order = getattr(args, "format", "text"), getattr(args, "order", "weakest")
+    fmt = getattr(args, "format", "text")
     colour = use_colour(getattr(args, "color", "auto"), out, environment)
-    if getattr(args, "against", None):
+    against = getattr(args, "against", None)
+    if against:
         from auditor.gitrev import check_board_at
 
-        check_board_at(report.info.board_path, args.against)
-    if getattr(args, "write_baseline", None):
-        _write_baseline(report, args.write_baseline)
-    if getattr(args, "svg", None):
-        from auditor.report.svg import write_svg
+        check_board_at(report.info.board_path, against)
+    _write_outputs(report, args)
+    on_stdout = not getattr(args, "output", None)
+    text_here = on_stdout and fmt == "text"
+    if on_stdout:
+        render(report, fmt, out, colour and text_here,
+               order=getattr(args, "order", "weakest"), closing=False)
+    diff = _against(report, args, audit) if against else None
+    aside = out if fmt == "text" else sys.stderr
+    if diff is not None:
+        from auditor.report.diff_render import render_diff
 
-        try:
-            write_svg(_with_board(report), args.svg)
-        except OSError as exc:
-            raise UsageError(f"{args.svg}: cannot write: {exc.strerror}") from None
-    if getattr(args, "output", None):
-        import io
-
-        buffer = io.StringIO()
-        render(report, fmt, buffer, False, order=order)
-        _write_file(args.output, buffer.getvalue())
-        if not getattr(args, "quiet", False):
-            out.write(summary_line(report, args.output) + "\n")
-    else:
-        render(report, fmt, out, colour and fmt == "text", order=order)
-    code = report.exit_code
-    if getattr(args, "against", None):
-        code = max(code, _against(report, args, audit, out if fmt == "text" else sys.stderr,
-                                  colour))
-    return code
+        aside.write("\n")
+        render_diff(diff, "text", aside, colour and aside is out, closing=False)
+    summary = dataclasses.replace(summarize(report, diff), demo=demo)
+    if text_here:
+        out.write("\n")
+        render_summary(summary, out, colour)
+    elif not getattr(args, "quiet", False):
+        render_summary(summary, out if not on_stdout else sys.stderr)
+    return summary.exit_code
 
 
-def summary_line(report: Report, written_to: str) -> str:
-    """One line for the terminal when the report went to a file."""
-    failing = len(report.failing)
-    state = "FAIL" if report.exit_code else "PASS"
-    if report.read_warnings:
-        state += f" (incomplete: {len(report.read_warnings)} item(s) skipped while reading)"
-    return (f"padaudit: {state}: {len(report.sensors)} electrode(s), "
-            f"{len(report.findings)} finding(s), {failing} failing; report in {written_to}")
-
-
-__all__ = ["add_report_options", "emit", "summary_line"]
+__all__ = ["add_report_options", "emit"]

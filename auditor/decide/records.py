@@ -78,6 +78,9 @@ class RunInfo:
     #: fraction (profile threshold ``max_ratio_loss``; 0.2 is common practice,
     #: no source). Read by ``padaudit diff`` and ``audit --against``.
     max_ratio_loss: float = 0.2
+    #: The configuration file read, as shown (relative to the working folder
+    #: when inside it); ``""`` when none was found.
+    config_path: str = ""
 
 
 @dataclass(frozen=True)

@@ -67,6 +67,10 @@ class Locator:
         self._lines: list[int] | None = None
         self._run_tokens: list[int] = []
         self._run_starts: list[int] = []
+        #: (run, token, offset) of the last token found: items are located in
+        #: file order, so the next search resumes there instead of re-scanning
+        #: the run (keeps locating every item linear in the file's size).
+        self._cursor: tuple[int, int, int] = (-1, 0, 0)
 
     def add_run(self, first_token: int, start: int) -> None:
         """Record that token ``first_token`` is the first at or after ``start``."""
@@ -77,11 +81,15 @@ class Locator:
         """Character offset of token ``index`` (clamped to the last token)."""
         k = bisect_right(self._run_tokens, index) - 1
         first, start = (self._run_tokens[k], self._run_starts[k]) if k >= 0 else (0, 0)
-        last = start
+        run, token, offset = self._cursor
+        if run == k and first <= token <= index:
+            first, start = token, offset
+        last, count = start, first
         for count, match in enumerate(_TOKEN.finditer(self._text, start), first):
             last = match.start()
             if count >= index:
                 break
+        self._cursor = (k, count, last)
         return last
 
     def line_column(self, offset: int) -> tuple[int, int]:

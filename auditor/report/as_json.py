@@ -149,6 +149,7 @@ def to_document(report: Report) -> dict[str, Any]:
         "tool": {"name": "padaudit", "version": info.tool_version},
         "board": {"path": info.board_path, "format_version": info.board_version},
         "run": {
+            "config_path": info.config_path or None,
             "profile": info.profile, "overlay": info.overlay, "touch_side": info.touch_side,
             "power": info.power, "fail_on": info.fail_on.label,
             "max_ratio_loss": significant(info.max_ratio_loss),
