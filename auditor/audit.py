@@ -26,7 +26,7 @@ from auditor.model.items import ReadWarning
 from auditor.model.results import PadMetrics
 from auditor.read import read_board
 from auditor.rules.context import RuleContext, RuleSettings, ThresholdValue
-from auditor.rules.registry import all_rules, run_rules
+from auditor.rules.registry import RuleSpec, all_rules, run_rules
 from auditor.sensors import find_sensors, mark_sense_neighbours, measure_each
 from auditor.sensors.model import Sensor, name_order
 from auditor.sensors.selection import SensorSelection
@@ -264,9 +264,28 @@ def build_report(board: Board, sensors: tuple[Sensor, ...], metrics: Mapping[str
         stale_waivers=decision.stale_waivers,
         rule_errors=tuple(sorted(ran.errors)),
         cautions=_cautions(config.power),
+        skipped_rules=skipped_rules(specs, active, precise=extras is not None),
         board=board,
         precise=extras,
     )
+
+
+#: The module of the rules that judge 3-D results only (``--precise``).
+PRECISE_RULES_MODULE = "auditor.rules.precise_rules"
+SKIPPED_OFF = "switched off by the profile or the configuration"
+SKIPPED_QUICK = "judges 3-D results only: runs with --precise"
+
+
+def skipped_rules(specs: tuple[RuleSpec, ...], active: set[str],
+                  precise: bool) -> tuple[tuple[str, str], ...]:
+    """``(rule id, why)`` for each rule that did not judge this run, by id."""
+    skipped = []
+    for spec in specs:
+        if spec.rule_id not in active:
+            skipped.append((spec.rule_id, SKIPPED_OFF))
+        elif spec.module == PRECISE_RULES_MODULE and not precise:
+            skipped.append((spec.rule_id, SKIPPED_QUICK))
+    return tuple(sorted(skipped))
 
 
 def _sensor_results(sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetrics],
