@@ -145,7 +145,8 @@ def rule_settings(config: Config, nets_of_sensors: tuple[str, ...] = ()) -> Rule
         overlay_electrical_mm=config.overlay_electrical_mm,
         touch_side=config.touch_side, power=config.power,
         noisy_nets=config.noisy_nets,
-        controller_ref=config.controller or config.selection.controller_ref)
+        controller_ref=config.controller or config.selection.controller_ref,
+        electrodes_configured=config.selection.configured)
 
 
 def describe_warning(warning: ReadWarning) -> str:

@@ -32,11 +32,13 @@ SENSOR_KINDS: tuple[SensorKind, ...] = get_args(SensorKind)
 SEVERITY_NAMES: tuple[SeverityName, ...] = get_args(SeverityName)
 #: Self-capacitance kinds (the rest are the two sides of a mutual pair).
 SELF_KINDS: tuple[SensorKind, ...] = ("button", "slider", "wheel", "proximity")
+#: Kinds a finger touches; the touch rules judge these only.
+TOUCH_KINDS: tuple[SensorKind, ...] = SELF_KINDS + ("mutual-tx", "mutual-rx")
 
 #: A finding's identity that survives re-saves of the board: rule id, sensor,
 #: nets, references (no uuids, no coordinates, no float noise).
 FindingKey = tuple[str, str, tuple[str, ...], tuple[str, ...]]
 
 __all__ = ["PAD_SIDES", "POWER_PRESETS", "SELF_KINDS", "SENSOR_KINDS", "SEVERITY_NAMES",
-           "TOUCH_SIDES", "FindingKey", "PadSide", "PowerPreset", "SensorKind",
+           "TOUCH_KINDS", "TOUCH_SIDES", "FindingKey", "PadSide", "PowerPreset", "SensorKind",
            "SeverityName", "TouchSide"]

@@ -14,10 +14,16 @@ from dataclasses import dataclass, field
 from typing import Protocol
 
 from auditor.model.items import ReadWarning
-from auditor.model.vocabulary import PowerPreset, TouchSide
+from auditor.model.vocabulary import TOUCH_KINDS, PowerPreset, TouchSide
 from auditor.sensors.model import Sensor
 
 ThresholdValue = float | int | bool
+
+
+#: Slack on millimetre comparisons: measured gaps and lengths come from
+#: polygonised arcs (a 2 mm clearance measures 2.001-2.004 mm), so a few µm,
+#: far below any fabricator's tolerance, count as equal.
+EPS_MM = 0.005
 
 
 class PadMetricsLike(Protocol):
@@ -49,16 +55,17 @@ class RuleSettings:
     noisy_nets: tuple[str, ...] = ()
     controller_ref: str = ""
     sense_nets: tuple[str, ...] = ()  # every electrode's nets, both sides of series parts
+    #: Configuration names electrodes (nets, refs, classes ...): finding none is an error.
+    electrodes_configured: bool = False
+
+    @property
+    def bare(self) -> bool:
+        """True when the finger touches the board itself (no cover, no air gap)."""
+        return self.overlay_thickness_mm <= EPS_MM
 
     def is_noisy_net(self, net: str) -> bool:
         """True when ``net`` matches one of the configured noisy-net globs."""
         return any(fnmatch.fnmatchcase(net, pattern) for pattern in self.noisy_nets)
-
-
-#: Slack on millimetre comparisons: measured gaps and lengths come from
-#: polygonised arcs (a 2 mm clearance measures 2.001-2.004 mm), so a few µm,
-#: far below any fabricator's tolerance, count as equal.
-EPS_MM = 0.005
 
 
 class UndeclaredThreshold(KeyError):
@@ -108,6 +115,12 @@ class RuleContext:
     precise: object | None = None
     #: Electrodes the field step ran for but could not solve, with the reason.
     unsolved: Mapping[str, str] = field(default_factory=dict)
+
+    @property
+    def touch_sensors(self) -> tuple[Sensor, ...]:
+        """The finger-touch electrodes: every sensor but capacitive key
+        switches and any other kind no touch rule applies to."""
+        return tuple(s for s in self.sensors if s.kind in TOUCH_KINDS)
 
     def limits_for(self, rule_id: str, names: tuple[str, ...]) -> Limits:
         """The declared thresholds of one rule (missing ones left out)."""

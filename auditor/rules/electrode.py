@@ -4,8 +4,10 @@ from __future__ import annotations
 
 from collections.abc import Iterator
 
+from auditor.model.vocabulary import TOUCH_KINDS
 from auditor.rules.context import EPS_MM
 from auditor.rules.finding import Finding, Severity
+from auditor.rules.groups import in_one_group
 from auditor.rules.registry import RuleCall, board_rule, sensor_rule
 from auditor.sensors.model import Sensor
 
@@ -67,9 +69,11 @@ def electrode_too_large(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
 def electrode_far_side(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     """An electrode on the far layer senses through the board's own dielectric
     as well as the cover, and any copper on the near layer screens it from the
-    finger."""
+    finger. A pad drawn on both faces is judged by its near-side copy."""
     near = call.board.touch_layer
-    if sensor.layer != near:
+    if sensor.layer != near and not any(
+            o.layer == near and set(o.nets) == set(sensor.nets) and _overlap(o, sensor)
+            for o in call.board.sensors):
         yield call.finding(
             f"electrode is on {sensor.layer}; the touch surface is on the "
             f"{call.board.settings.touch_side} ({near})", sensor)
@@ -77,18 +81,40 @@ def electrode_far_side(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
 
 @sensor_rule(
     "electrode-mask-open",
-    title="Solder mask opened over an electrode that should be covered",
-    fix="Remove the mask opening (footprint pad mask layer or a mask-layer graphic) so the "
-        "electrode stays under solder mask.",
+    title="Bare electrode copper under the finger",
+    fix="Keep the electrode under solder mask (remove the pad's mask opening or the "
+        "mask-layer graphic), or put a cover over the board and set its overlay.",
     severity=Severity.WARNING,
     thresholds=("electrode_must_be_covered",),
 )
 def electrode_mask_open(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
-    """Bare copper under a cover corrodes, and an air gap over the thickness
-    of the missing mask changes the baseline from pad to pad; where the cover
-    is glued on, the mask gives a flat, insulated surface."""
-    if call.limits.flag("electrode_must_be_covered") and sensor.exposed:
-        yield call.finding("electrode copper is exposed through a solder-mask opening", sensor)
+    """With no cover over the board the finger touches the electrode itself:
+    a solder-mask opening makes that a direct contact, so the reading jumps
+    with skin moisture and every touch is an ESD strike straight into the
+    controller pin. The mask is the only insulation there."""
+    if call.limits.flag("electrode_must_be_covered") and sensor.exposed \
+            and call.board.settings.bare:
+        yield call.finding("electrode copper is exposed through a solder-mask opening and "
+                           "the finger touches the board directly (no overlay)", sensor)
+
+
+@sensor_rule(
+    "electrode-mask-open-covered",
+    title="Solder mask opened over an electrode under a cover",
+    fix="Keep the electrode under solder mask unless the opening is meant (a spring contact "
+        "or a glued-on electrode).",
+    severity=Severity.INFO,
+    thresholds=("electrode_must_be_covered",),
+)
+def electrode_mask_open_covered(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+    """Under a cover the finger never reaches the copper, so an opening only
+    matters a little: bare copper corrodes, and the mask's missing thickness
+    leaves an air gap that changes the baseline from pad to pad. Openings
+    are also drawn on purpose (a landing pad for a spring contact)."""
+    if call.limits.flag("electrode_must_be_covered") and sensor.exposed \
+            and not call.board.settings.bare:
+        yield call.finding("electrode copper is exposed through a solder-mask opening "
+                           "(under the cover)", sensor)
 
 
 @sensor_rule(
@@ -123,7 +149,7 @@ def electrodes_too_close(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     if surround is None or surround.nearest_sensor_mm is None:
         return
     other = next((s for s in call.board.sensors if s.name == surround.nearest_sensor), None)
-    if other is not None and sensor.group and other.group == sensor.group:
+    if other is not None and (in_one_group(sensor, other) or other.kind not in TOUCH_KINDS):
         return
     limit_mm = max(call.limits["electrode_min_spacing_mm"],
                    call.board.settings.overlay_thickness_mm)
@@ -146,24 +172,42 @@ def electrodes_too_close(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
 def electrodes_share_net(call: RuleCall) -> Iterator[Finding]:
     """Two electrodes on one net are one sensor to the controller: a touch on
     either reads the same and the pair has the baseline of both. It is usually
-    a copy-paste or a net-label mistake. Mutual-capacitance transmit lines are
-    shared on purpose and are exempt."""
+    a copy-paste or a net-label mistake. Mutual-capacitance transmit and
+    receive lines are shared on purpose (each key of a matrix is one transmit
+    column crossing one receive row) and are exempt, as are pieces of one
+    slider or wheel (split end segments) and one pad drawn on both faces."""
     by_net: dict[str, list[Sensor]] = {}
-    for sensor in call.board.sensors:
-        if sensor.kind == "mutual-tx":
+    for sensor in call.board.touch_sensors:
+        if sensor.kind in ("mutual-tx", "mutual-rx"):
             continue
         for net in sensor.nets:
             if net:
                 by_net.setdefault(net, []).append(sensor)
     for net in sorted(by_net):
         joined = sorted(by_net[net], key=lambda s: s.name)
-        if len(joined) < 2:
+        if len(joined) < 2 or _one_electrode(joined):
             continue
         names = ", ".join(s.name for s in joined)
         yield call.finding(
             f"electrodes {names} are all on net {net}", joined[0],
             (("electrodes", float(len(joined))),), nets=(net,),
             refs=tuple(r for s in joined for r in s.refs))
+
+
+def _one_electrode(joined: list[Sensor]) -> bool:
+    """True when the sensors on one net are by design one electrode: all
+    segments of one slider or wheel, or copies of one pad on both faces
+    (each overlapping the first in plan)."""
+    first = joined[0]
+    if all(in_one_group(first, s) for s in joined[1:]):
+        return True
+    return all(s.layer != first.layer and _overlap(first, s) for s in joined[1:])
+
+
+def _overlap(a: Sensor, b: Sensor) -> bool:
+    """True when ``a`` and ``b`` cover mostly the same place (in plan)."""
+    smaller = min(a.area_mm2, b.area_mm2)
+    return smaller > 0 and float(a.geometry.intersection(b.geometry).area) > 0.5 * smaller
 
 
 def _reported_by(other: Sensor | None, sensor: Sensor) -> bool:

@@ -7,8 +7,11 @@ from collections.abc import Iterator
 
 from auditor.rules.context import EPS_MM
 from auditor.rules.finding import Finding, Severity
+from auditor.rules.groups import in_one_group
 from auditor.rules.registry import RuleCall, sensor_rule
+from auditor.rules.sense_path import off_board
 from auditor.sensors.model import Sensor
+from auditor.sensors.noisy import is_shield_net
 
 
 @sensor_rule(
@@ -24,13 +27,15 @@ def ground_gap_tight(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     otherwise reach the finger: the baseline Cp rises and the touch signal ΔC
     falls, so the relative change shrinks on both counts. Slider and wheel
     segments sit close to each other by design, so they have their own,
-    smaller limit."""
+    smaller limit, and none at all against a segment of their own group."""
     surround = sensor.surroundings
     if surround is None:
         return
     segment = sensor.kind in ("slider", "wheel")
     checks = [(surround.min_gap_mm, "surrounding copper",
                call.limits["segment_gap_min_mm" if segment else "ground_gap_min_mm"])]
+    if _nearest_is_sibling(sensor, call):  # interleaved segments: close by design
+        checks = []
     if segment:  # the ground itself, measured apart from the neighbouring segments
         checks.append((surround.min_ground_gap_mm, f"ground {surround.ground_net}",
                        call.limits["ground_gap_min_mm"]))
@@ -40,6 +45,17 @@ def ground_gap_tight(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
                 f"gap to {what} is {gap_mm:.2f} mm, less than {limit_mm:.2f} mm", sensor,
                 (("gap_mm", gap_mm), ("min_mm", limit_mm)))
             return
+
+
+def _nearest_is_sibling(sensor: Sensor, call: RuleCall) -> bool:
+    """True when the closest copper around the segment is a segment of its
+    own slider or wheel (so the measured gap is the interleaving)."""
+    surround = sensor.surroundings
+    if surround is None or surround.min_gap_mm is None or surround.nearest_sensor_mm is None:
+        return False
+    other = next((s for s in call.board.sensors if s.name == surround.nearest_sensor), None)
+    return other is not None and in_one_group(sensor, other) \
+        and surround.nearest_sensor_mm <= surround.min_gap_mm + EPS_MM
 
 
 @sensor_rule(
@@ -84,15 +100,17 @@ def copper_under_electrode(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     """Copper on another layer under the pad forms a parallel-plate capacitor
     with it through the board: with a 1.6 mm FR-4 board and a solid plane the
     baseline can exceed the controller's range and the relative change under a
-    finger collapses. A hatch lowers that in proportion to its fill."""
+    finger collapses. A hatch lowers that in proportion to its fill. A driven
+    shield under the pad is at the pad's own potential and is exempt."""
     surround = sensor.surroundings
     if surround is None:
         return
     min_fraction = call.limits["under_shadow_min_fraction"]
     max_fill = call.limits["under_fill_max_ratio"]
     for shadow in sorted(surround.shadows, key=lambda s: s.layer):
-        if shadow.fill == "none" or shadow.shadowed_fraction < min_fraction:
-            continue
+        if shadow.fill == "none" or shadow.shadowed_fraction < min_fraction \
+                or (shadow.nets and all(is_shield_net(n) for n in shadow.nets)):
+            continue  # a driven shield under the pad is there to cut Cp, not add it
         if shadow.fill_ratio > max_fill + 1e-9:
             yield call.finding(
                 f"{shadow.fill} copper on {shadow.layer} covers "
@@ -166,9 +184,12 @@ def ground_ratio_small(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     coupling to the user and to earth. A battery device whose ground copper is
     not much larger than its electrodes couples weakly, so part of the signal
     is lost (physics.md §3, floating reduction). Mains products are tied to
-    earth through the supply and are exempt."""
+    earth through the supply and are exempt, and so are electrodes wired to a
+    connector: the device ground is then mostly on the controller's board."""
     surround = sensor.surroundings
     if surround is None or not surround.ground_net or sensor.area_mm2 <= 0:
+        return
+    if sensor.path is not None and off_board(sensor.path):
         return
     if call.board.settings.power == "mains":
         return

@@ -20,6 +20,40 @@ def segment_groups(sensors: tuple[Sensor, ...]) -> dict[str, tuple[Sensor, ...]]
             for name, members in sorted(groups.items()) if len(members) >= 2}
 
 
+def in_one_group(a: Sensor, b: Sensor) -> bool:
+    """True when ``a`` and ``b`` are segments of one slider or wheel: their
+    closeness, interleaving and coupling are by design. (Reads the sensor
+    record's ``group``; the one place to change if grouping moves.)"""
+    return bool(a.group) and a.group == b.group and a.name != b.name
+
+
+#: Share of a segment's copper inside a sibling's convex hull above which
+#: the two are interleaved (teeth or chevrons; value chosen by padaudit).
+INTERLEAVED_SHARE = 0.05
+
+
+def interleaved(members: tuple[Sensor, ...]) -> bool:
+    """True when neighbouring segments reach into each other's outline
+    (interleaved teeth or chevrons), as opposed to plain side-by-side pads."""
+    for a, b in zip(members, members[1:], strict=False):
+        if a.layer != b.layer or a.geometry.intersection(b.geometry).area > 1e-6:
+            continue  # not two separate pieces of copper side by side
+        for one, other in ((a, b), (b, a)):
+            reach = float(one.geometry.convex_hull.intersection(other.geometry).area)
+            if other.area_mm2 > 0 and reach > INTERLEAVED_SHARE * other.area_mm2:
+                return True
+    return False
+
+
+def _area_by_net(members: tuple[Sensor, ...]) -> dict[str, float]:
+    """Copper area per segment net (two end pads on one net are one segment)."""
+    areas: dict[str, float] = {}
+    for s in members:
+        key = s.nets[0] if s.nets else s.name
+        areas[key] = areas.get(key, 0.0) + s.area_mm2
+    return areas
+
+
 def _nets(members: tuple[Sensor, ...]) -> tuple[str, ...]:
     return tuple(n for s in members for n in s.nets)
 
@@ -38,10 +72,15 @@ def _refs(members: tuple[Sensor, ...]) -> tuple[str, ...]:
 def segments_unequal_area(call: RuleCall) -> Iterator[Finding]:
     """The position of a finger on a slider is interpolated from the segments'
     signals; segments of unequal area give unequal signals for the same
-    overlap, which bends the position curve."""
+    overlap, which bends the position curve. Interleaved segments (teeth,
+    chevrons) share the finger by their interleaving, and their areas differ
+    by design (the middle segment of three is cut on both sides), so they
+    are exempt; pieces of one segment on one net (split ends) count as one."""
     limit = call.limits["segment_area_max_spread"]
     for group, members in segment_groups(call.board.sensors).items():
-        areas = [s.area_mm2 for s in members]
+        if interleaved(members):
+            continue
+        areas = list(_area_by_net(members).values())
         mean = sum(areas) / len(areas)
         spread = (max(areas) - min(areas)) / mean if mean > 0 else 0.0
         if spread > limit + 1e-9:

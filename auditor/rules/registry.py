@@ -20,7 +20,7 @@ from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass, field
 from typing import Protocol
 
-from auditor.model.vocabulary import SENSOR_KINDS, SensorKind
+from auditor.model.vocabulary import TOUCH_KINDS, SensorKind
 from auditor.rules.context import Limits, RuleContext
 from auditor.rules.finding import Finding, Severity
 from auditor.sensors.model import Sensor
@@ -37,6 +37,10 @@ class SourcePlaced(Protocol):
 
 
 _SLUG = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
+
+#: Sensor rules run on these kinds only (key switches and other non-touch
+#: kinds get none).
+ALL_KINDS: tuple[SensorKind, ...] = TOUCH_KINDS
 
 
 @dataclass(frozen=True)
@@ -139,7 +143,7 @@ def _reflowed(doc: str) -> str:
 
 def sensor_rule(rule_id: str, *, title: str, fix: str, severity: Severity,
                 thresholds: tuple[str, ...] = (),
-                kinds: tuple[SensorKind, ...] = SENSOR_KINDS,
+                kinds: tuple[SensorKind, ...] = ALL_KINDS,
                 ) -> Callable[[SensorRuleFn], SensorRuleFn]:
     """Register a rule called once per sensor of one of ``kinds``."""
     return _decorate(rule_id, title, fix, severity, thresholds, kinds, "sensor")
@@ -148,7 +152,7 @@ def sensor_rule(rule_id: str, *, title: str, fix: str, severity: Severity,
 def board_rule(rule_id: str, *, title: str, fix: str, severity: Severity,
                thresholds: tuple[str, ...] = ()) -> Callable[[BoardRuleFn], BoardRuleFn]:
     """Register a rule called once per board."""
-    return _decorate(rule_id, title, fix, severity, thresholds, SENSOR_KINDS, "board")
+    return _decorate(rule_id, title, fix, severity, thresholds, ALL_KINDS, "board")
 
 
 def all_rules() -> tuple[RuleSpec, ...]:

@@ -3,12 +3,24 @@
 from __future__ import annotations
 
 from collections.abc import Iterator
-from typing import Any
 
+from auditor.model.vocabulary import TOUCH_KINDS
 from auditor.rules.context import EPS_MM
 from auditor.rules.finding import Finding, Severity
+from auditor.rules.groups import in_one_group
 from auditor.rules.registry import RuleCall, sensor_rule
-from auditor.sensors.model import Neighbour, SensePath, Sensor
+from auditor.rules.sense_path import (
+    at_crossing,
+    at_neighbour,
+    at_series_part,
+    is_noisy,
+    is_sense,
+    nets_of,
+    off_board,
+    sibling_net,
+)
+from auditor.sensors.model import Sensor
+from auditor.sensors.noisy import is_shield_net
 
 
 @sensor_rule(
@@ -97,25 +109,6 @@ def trace_too_many_vias(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
             (("vias", float(path.vias)), ("max", limit)))
 
 
-def _at(neighbour: Neighbour) -> dict[str, Any]:
-    """Place a finding where the other net comes closest to the sense path
-    (the electrode's own place when that is not known)."""
-    if neighbour.x_mm is None or neighbour.y_mm is None:
-        return {}
-    return {"x_mm": neighbour.x_mm, "y_mm": neighbour.y_mm, "layer": neighbour.layer}
-
-
-def _at_series_part(path: SensePath) -> dict[str, Any]:
-    """Place a finding at the series part (the thing to move)."""
-    if path.series_x_mm is None or path.series_y_mm is None:
-        return {}
-    return {"x_mm": path.series_x_mm, "y_mm": path.series_y_mm, "layer": path.series_layer}
-
-
-def _noisy(neighbour: Neighbour, call: RuleCall) -> bool:
-    return neighbour.noisy or call.board.settings.is_noisy_net(neighbour.net)
-
-
 @sensor_rule(
     "trace-parallel-run",
     title="Sense trace runs beside another net",
@@ -138,15 +131,17 @@ def trace_parallel_run(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     width_mm = max((r.width_mm for r in path.runs), default=0.0)
     sense_gap_mm = call.limits["sense_spacing_widths"] * width_mm
     for neighbour in sorted(path.neighbours, key=lambda n: n.net):
-        is_sense = neighbour.sense or neighbour.net in call.board.settings.sense_nets
-        if is_sense and neighbour.min_distance_mm >= sense_gap_mm - EPS_MM:
+        if neighbour.min_distance_mm is None or is_shield_net(neighbour.net) \
+                or sibling_net(sensor, neighbour.net, call):
+            continue  # crossings only, a driven shield, or a segment of its own slider
+        if is_sense(neighbour, call) and neighbour.min_distance_mm >= sense_gap_mm - EPS_MM:
             continue
         if neighbour.parallel_mm > limit_mm + EPS_MM:
             yield call.finding(
                 f"runs {neighbour.parallel_mm:.1f} mm beside net {neighbour.net}, more than "
                 f"{limit_mm:.1f} mm", sensor,
                 (("parallel_mm", neighbour.parallel_mm), ("max_mm", limit_mm)),
-                nets=sensor.nets + (neighbour.net,), **_at(neighbour))
+                nets=sensor.nets + (neighbour.net,), **at_neighbour(neighbour))
 
 
 @sensor_rule(
@@ -159,18 +154,23 @@ def trace_parallel_run(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
 )
 def trace_near_noisy_net(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     """Fast edges on a nearby net inject charge through even a small mutual
-    capacitance; the controller integrates it as signal."""
+    capacitance; the controller integrates it as signal. Distances are taken
+    on one layer (a net on another layer that the trace crosses is the
+    crossings rule's business) and away from the controller's own pins,
+    where the nets on neighbouring pins cannot be avoided."""
     path = sensor.path
     if path is None:
         return
     limit_mm = call.limits["noisy_net_min_mm"]
     for neighbour in sorted(path.neighbours, key=lambda n: n.net):
-        if _noisy(neighbour, call) and neighbour.min_distance_mm < limit_mm - EPS_MM:
+        if neighbour.min_distance_mm is None or not is_noisy(neighbour, call):
+            continue
+        if neighbour.min_distance_mm < limit_mm - EPS_MM:
             yield call.finding(
                 f"noisy net {neighbour.net} comes within {neighbour.min_distance_mm:.2f} mm, "
                 f"less than {limit_mm:.2f} mm", sensor,
                 (("distance_mm", neighbour.min_distance_mm), ("min_mm", limit_mm)),
-                nets=sensor.nets + (neighbour.net,), **_at(neighbour))
+                nets=sensor.nets + (neighbour.net,), **at_neighbour(neighbour))
 
 
 @sensor_rule(
@@ -190,10 +190,12 @@ def trace_crossings(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     total = sum(n.crossings for n in crossed)
     limit = call.limits["trace_max_crossings"]
     if total > limit:
+        most = max(crossed, key=lambda n: (n.crossings, n.net))
         yield call.finding(
-            f"sense trace crosses other nets {total} times, more than {limit:.0f}", sensor,
+            f"sense trace crosses other nets {total} times, more than {limit:.0f} (most "
+            f"often {most.net}, {most.crossings} times)", sensor,
             (("crossings", float(total)), ("max", limit)),
-            nets=sensor.nets + tuple(n.net for n in crossed))
+            nets=sensor.nets + tuple(n.net for n in crossed), **at_crossing(most))
 
 
 @sensor_rule(
@@ -208,16 +210,13 @@ def trace_under_electrode(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     path = sensor.path
     if path is None:
         return
+    by_name = {s.name: s for s in call.board.sensors}
     for other in sorted(set(path.under_electrodes)):
+        if other in by_name and (in_one_group(sensor, by_name[other])
+                                 or by_name[other].kind not in TOUCH_KINDS):
+            continue  # a segment's trace beside its own slider's segments: by design
         yield call.finding(f"sense trace passes under or beside electrode {other}", sensor,
-                           nets=sensor.nets + _nets_of(other, call))
-
-
-def _nets_of(sensor_name: str, call: RuleCall) -> tuple[str, ...]:
-    for s in call.board.sensors:
-        if s.name == sensor_name:
-            return s.nets
-    return ()
+                           nets=sensor.nets + nets_of(other, call))
 
 
 @sensor_rule(
@@ -229,9 +228,10 @@ def _nets_of(sensor_name: str, call: RuleCall) -> tuple[str, ...]:
 def series_resistor_missing(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     """A series resistor at the controller pin limits ESD current into it and,
     with the pin's capacitance, filters radio-frequency noise picked up by the
-    electrode and trace."""
+    electrode and trace. When the path ends on a connector to an off-board
+    controller, the resistor belongs on the controller's board."""
     path = sensor.path
-    if path is None or not path.complete or path.series_ref:
+    if path is None or not path.complete or path.series_ref or off_board(path):
         return
     yield call.finding(
         f"the path reaches {path.controller_ref or 'the controller'} without a series part",
@@ -249,7 +249,8 @@ def series_resistor_far(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     """Trace between the resistor and the pin is unfiltered: noise and ESD
     picked up there reach the pin without the resistor's protection."""
     path = sensor.path
-    if path is None or not path.series_ref or path.series_to_pin_mm is None:
+    if path is None or not path.series_ref or path.series_to_pin_mm is None \
+            or off_board(path):
         return
     limit_mm = call.limits["series_max_to_pin_mm"]
     if path.series_to_pin_mm > limit_mm + EPS_MM:
@@ -257,4 +258,4 @@ def series_resistor_far(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
             f"{path.series_ref} is {path.series_to_pin_mm:.1f} mm of trace from the controller "
             f"pin, more than {limit_mm:.1f} mm", sensor,
             (("distance_mm", path.series_to_pin_mm), ("max_mm", limit_mm)),
-            refs=sensor.refs + (path.series_ref,), **_at_series_part(path))
+            refs=sensor.refs + (path.series_ref,), **at_series_part(path))

@@ -5,7 +5,8 @@ Names are split into word-ish tokens (``TOUCH_KEY3`` → touch, key, 3;
 
 * **strong** words name a touch electrode on their own, and also count as a
   prefix of a token (``TOUCHPAD``, ``SENSE3``): touch, slider, wheel, prox,
-  electrode, sense, capsense, captouch;
+  electrode, sense; also after a ``cap``/``c`` prefix for capacitive
+  (``CAPSENSE0``, ``CTOUCH``);
 * **weak** words are common abbreviations that also name other things (a
   mechanical ``BTN``, a test point ``TP``, an LED's ``CAP``); they count only
   as whole tokens, never inside KiCad's automatic names (``Net-(TP1-Pad1)``),
@@ -22,8 +23,9 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass
 
-STRONG_WORDS = ("touch", "slider", "wheel", "prox", "electrode", "sense", "capsense",
-                "captouch", "csense")
+STRONG_WORDS = ("touch", "slider", "wheel", "prox", "electrode", "sense")
+#: Prefixes for "capacitive" that may stand before a strong word in one token.
+CAPACITIVE_PREFIXES = ("cap", "c")
 WEAK_WORDS = frozenset({"button", "btn", "key", "sld", "whl", "cap", "tp", "sns", "elec",
                         "pad", "tch", "sen", "cs"})
 #: Words for another function that cancel a weak cue (``CAP_LED``).
@@ -78,8 +80,9 @@ def name_cue(name: str) -> NameCue | None:
     """
     toks = tokens(name)
     for tok in toks:
+        stems = (tok, *(tok[len(p):] for p in CAPACITIVE_PREFIXES if tok.startswith(p)))
         for word in STRONG_WORDS:
-            if tok.startswith(word):
+            if any(stem.startswith(word) for stem in stems):
                 return NameCue(word, True)
     if is_auto_name(name) or OTHER_FUNCTION_WORDS.intersection(toks):
         return None

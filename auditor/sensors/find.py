@@ -4,7 +4,7 @@ Cues, strongest first (each sensor's ``reason`` names the one that decided):
 
 1. configuration: net globs, net classes, footprint references, library ids
    or properties, zone names;
-2. a net class named for touch (``Touch``, ``CapSense`` ...);
+2. a net class named for touch (``Touch``, ``Touch_Keys`` ...);
 3. a strong word in the net name or the electrode footprint's library id
    (``TOUCH3``, ``Touchpad:TP_10mm``);
 4. a weak word in the net name (``BTN2``, ``KEY_3``, ``TP4``) *and* the net's

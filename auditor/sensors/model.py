@@ -31,7 +31,8 @@ class Neighbour:
 
     net: str
     parallel_mm: float = 0.0  # length run within the profile's distance
-    min_distance_mm: float = 0.0
+    #: Edge to edge on the same layer; None when the net only crosses on another layer.
+    min_distance_mm: float | None = 0.0
     crossings: int = 0  # crossings on adjacent layers
     noisy: bool = False
     sense: bool = False  # the net is (part of) another electrode's sense path
@@ -39,6 +40,10 @@ class Neighbour:
     x_mm: float | None = None
     y_mm: float | None = None
     layer: str = ""
+    #: Where the first crossing on another layer is (None: no crossing).
+    crossing_x_mm: float | None = None
+    crossing_y_mm: float | None = None
+    crossing_layer: str = ""
 
 
 @dataclass(frozen=True)

@@ -1,13 +1,21 @@
 """What a sense path runs beside: other nets on its layer, crossings on the
 layers next to it, and other electrodes it passes under or beside.
 
-Distances are edge to edge (copper to copper). A neighbour's *parallel
-length* is how much of the track's centre line lies within
-``neighbour_distance_mm`` (edge to edge) of that net's copper.
+Distances are edge to edge (copper to copper) and only ever on one layer: a
+net met on another layer is a crossing, counted and placed where it crosses,
+never a distance of zero. A neighbour's *parallel length* is how much of the
+track's centre line lies within ``neighbour_distance_mm`` (edge to edge) of
+that net's copper.
+
+Near the controller's own pins the sense trace cannot keep its distance from
+the nets on the neighbouring pins, so the path inside the controller's *pin
+field* (its pads grown by :data:`PIN_FIELD_PITCHES` times its pad pitch) is
+left out of distances and parallel lengths.
 """
 
 from __future__ import annotations
 
+import math
 from collections.abc import Collection, Sequence
 
 from shapely import STRtree
@@ -19,8 +27,15 @@ from auditor.model.board import Board
 from auditor.model.geometry import Arc
 from auditor.model.items import Track
 from auditor.sensors.model import Neighbour, Sensor
-from auditor.sensors.selection import SensorSelection, matches
+from auditor.sensors.noisy import is_noisy_net
+from auditor.sensors.selection import SensorSelection
 from auditor.sensors.spatial import items_in_box, pieces_in
+
+#: Radius of the controller's pin field in pad pitches: the fan-out of a
+#: fine-pitch package (common practice, no source; value chosen by padaudit).
+PIN_FIELD_PITCHES = 4.0
+#: The pin field is never narrower than this (mm), whatever the pitch.
+PIN_FIELD_MIN_MM = 1.0
 
 
 def centre_line(track: Track) -> LineString:
@@ -35,74 +50,117 @@ def centre_line(track: Track) -> LineString:
 
 
 def neighbours_of_path(board: Board, tracks: Sequence[Track], skip_nets: Collection[str],
-                       selection: SensorSelection) -> tuple[Neighbour, ...]:
-    """Other nets beside or crossing ``tracks``, sorted by net name."""
+                       selection: SensorSelection, controller_ref: str = ""
+                       ) -> tuple[Neighbour, ...]:
+    """Other nets beside or crossing ``tracks``, sorted by net name.
+
+    ``controller_ref`` names the part the path ends on; its pin field is
+    left out of the distances (see module docs).
+    """
+    field = pin_field(board, controller_ref)
     parallel: dict[str, float] = {}
     closest: dict[str, float] = {}
     where: dict[str, tuple[float, float, str]] = {}
-    crossings: dict[str, int] = {}
     groups: dict[tuple[str, float], list[Track]] = {}
     for tr in tracks:
         groups.setdefault((tr.layer, round(tr.width_mm, 6)), []).append(tr)
     for (layer, width), group in sorted(groups.items()):
         for net, length, dist, (x, y) in _beside(board, layer, width, group, skip_nets,
-                                                 selection):
+                                                 selection, field):
             parallel[net] = parallel.get(net, 0.0) + length
             if dist < closest.get(net, float("inf")):
                 closest[net], where[net] = dist, (x, y, layer)
-    for tr in tracks:
-        for net, count in _crossing(board, tr, centre_line(tr), skip_nets):
-            crossings[net] = crossings.get(net, 0) + count
-    nets = sorted(set(parallel) | set(crossings))
-    return tuple(Neighbour(net, parallel.get(net, 0.0), closest.get(net, 0.0),
-                           crossings.get(net, 0), matches(net, selection.noisy_nets),
-                           *_place(where.get(net)))
+    crossed = _crossings(board, tracks, skip_nets)
+    nets = sorted(set(parallel) | set(crossed))
+    return tuple(_neighbour(board, net, parallel.get(net, 0.0), closest.get(net),
+                            where.get(net), crossed.get(net), selection)
                  for net in nets)
 
 
-def _place(spot: tuple[float, float, str] | None) -> tuple[bool, float | None, float | None, str]:
-    """``sense`` (set later by the caller) and the closest-approach place."""
-    if spot is None:
-        return False, None, None, ""
-    x, y, layer = spot
-    return False, round(x, 4), round(y, 4), layer
+def _neighbour(board: Board, net: str, parallel_mm: float, closest_mm: float | None,
+               spot: tuple[float, float, str] | None,
+               crossed: tuple[int, float, float, str] | None,
+               selection: SensorSelection) -> Neighbour:
+    """One neighbour record (``sense`` is set later by the caller)."""
+    x, y, layer = spot if spot is not None else (None, None, "")
+    count, cx, cy, clayer = crossed if crossed is not None else (0, None, None, "")
+    return Neighbour(
+        net, parallel_mm, closest_mm, count, is_noisy_net(board, net, selection), False,
+        None if x is None else round(x, 4), None if y is None else round(y, 4), layer,
+        None if cx is None else round(cx, 4), None if cy is None else round(cy, 4), clayer)
+
+
+def pin_field(board: Board, ref: str) -> BaseGeometry | None:
+    """The pads of part ``ref`` grown by its pin-field radius, or None."""
+    fp = next((f for f in board.footprints if ref and f.ref == ref), None)
+    if fp is None or len(fp.pads) < 2:
+        return None
+    centres = [(p.x_mm, p.y_mm) for p in fp.pads]
+    pitch = min((math.dist(a, b) for i, a in enumerate(centres) for b in centres[i + 1:]
+                 if math.dist(a, b) > 1e-3), default=0.0)
+    radius = max(PIN_FIELD_MIN_MM, PIN_FIELD_PITCHES * pitch)
+    copper = [s.geometry for p in fp.pads for s in p.copper]
+    return unary_union(copper).buffer(radius, quad_segs=4) if copper else None
 
 
 def _beside(board: Board, layer: str, width_mm: float, tracks: Sequence[Track],
-            skip: Collection[str], selection: SensorSelection
+            skip: Collection[str], selection: SensorSelection,
+            field: BaseGeometry | None = None,
             ) -> list[tuple[str, float, float, tuple[float, float]]]:
     """(net, parallel length, edge distance, closest point on the path) for
-    tracks of one layer and width."""
+    tracks of one layer and width, outside ``field``."""
     reach = selection.neighbour_distance_mm + width_mm / 2
-    lines = MultiLineString([centre_line(t) for t in tracks])
+    lines: BaseGeometry = MultiLineString([centre_line(t) for t in tracks])
+    copper_of_path = whole_path = unary_union([t.geometry for t in tracks])
+    if field is not None and field.intersects(copper_of_path):
+        lines, copper_of_path = lines.difference(field), copper_of_path.difference(field)
+        if copper_of_path.is_empty:
+            return []
     corridor = lines.buffer(reach + 1e-3)
     near: dict[str, list[BaseGeometry]] = {}
     for piece in pieces_in(board, layer, corridor, lambda it: it.net not in skip):
         near.setdefault(piece.item.net, []).append(piece.geometry)
     if not near:
         return []
-    copper_of_path = unary_union([t.geometry for t in tracks])
     out = []
     for net, geoms in sorted(near.items()):
         copper = unary_union(geoms)
         if copper.is_empty:
             continue
         length = float(lines.intersection(copper.buffer(reach, quad_segs=8)).length)
-        on_path = nearest_points(copper_of_path, copper)[0]
-        out.append((net, length, float(copper_of_path.distance(copper)),
-                    (float(on_path.x), float(on_path.y))))
+        distance = float(copper_of_path.distance(copper))
+        out.append((net, length, distance, _closest_point(whole_path, copper_of_path,
+                                                          copper, field)))
     return out
 
 
-def _crossing(board: Board, tr: Track, line: LineString,
-              skip: Collection[str]) -> list[tuple[str, int]]:
-    counts: dict[str, int] = {}
-    for layer in adjacent_layers(board, tr.layer):
-        for item in items_in_box(board, layer, line.bounds,
-                                 lambda it: it.source == "track" and it.net not in skip):
-            if item.geometry.intersects(line):
-                counts[item.net] = counts.get(item.net, 0) + 1
-    return sorted(counts.items())
+def _closest_point(whole: BaseGeometry, clipped: BaseGeometry, copper: BaseGeometry,
+                   field: BaseGeometry | None) -> tuple[float, float]:
+    """Where on the path ``copper`` comes closest: on the whole path when that
+    point lies outside the pin field (so a field changes no marker it need
+    not), else on the path outside the field."""
+    on_path = nearest_points(whole, copper)[0]
+    if field is not None and clipped is not whole and field.contains(on_path):
+        on_path = nearest_points(clipped, copper)[0]
+    return float(on_path.x), float(on_path.y)
+
+
+def _crossings(board: Board, tracks: Sequence[Track], skip: Collection[str]
+               ) -> dict[str, tuple[int, float, float, str]]:
+    """Per net: how often the path crosses its tracks on the adjacent layers,
+    and where it does first (x, y and the other net's layer)."""
+    found: dict[str, tuple[int, float, float, str]] = {}
+    for tr in tracks:
+        line = centre_line(tr)
+        for layer in adjacent_layers(board, tr.layer):
+            for item in items_in_box(board, layer, line.bounds,
+                                     lambda it: it.source == "track" and it.net not in skip):
+                if not item.geometry.intersects(line):
+                    continue
+                at = line.intersection(item.geometry).centroid
+                count, x, y, where = found.get(item.net, (0, at.x, at.y, layer))
+                found[item.net] = (count + 1, x, y, where)
+    return found
 
 
 def adjacent_layers(board: Board, layer: str) -> tuple[str, ...]:

@@ -66,7 +66,7 @@ def _path(board: Board, sensor: Sensor, others: Sequence[Sensor], sel: SensorSel
         series_y_mm=reach.series_pad.y_mm if reach.series_pad is not None else None,
         series_layer=(reach.series_pad.copper_layers[0] if reach.series_pad is not None
                       and reach.series_pad.copper_layers else ""),
-        neighbours=neighbours_of_path(board, tracks, skip, sel),
+        neighbours=neighbours_of_path(board, tracks, skip, sel, pin[0]),
         under_electrodes=sensors_beside_path(board, tracks, sensor, others,
                                              sel.neighbour_distance_mm),
         complete=complete,

@@ -1,6 +1,6 @@
 """Measure what surrounds each electrode.
 
-* gaps to same-layer copper of other nets: the minimum (edge to edge) and the
+* gaps to same-layer copper of other nets (a driven shield's excepted): the minimum (edge to edge) and the
   typical one, the median over points spaced :data:`PERIMETER_STEP_MM` along
   the electrode's outline of the distance to the nearest such copper (points
   with none within ``gap_search_mm`` are left out);
@@ -19,6 +19,7 @@ from collections.abc import Callable, Sequence
 
 import numpy as np
 import shapely
+import shapely.errors
 from shapely import STRtree
 from shapely.geometry.base import BaseGeometry
 from shapely.ops import unary_union
@@ -26,6 +27,7 @@ from shapely.ops import unary_union
 from auditor.model.board import Board
 from auditor.sensors.floating import floating_copper_near
 from auditor.sensors.model import Sensor, Surroundings
+from auditor.sensors.noisy import is_shield_net
 from auditor.sensors.parts import noisy_parts_near
 from auditor.sensors.selection import SensorSelection
 from auditor.sensors.shadow import shadows_of
@@ -40,7 +42,8 @@ def surroundings_of(board: Board, sensor: Sensor, others: Sequence[Sensor],
                     selection: SensorSelection, ground: str,
                     ground_area_mm2: float) -> Surroundings:
     """Everything :class:`Surroundings` holds for one electrode."""
-    own = set(sensor.nets)
+    # a driven shield carries the sense waveform: no field across that gap
+    own = set(sensor.nets) | {net for net in board.nets if is_shield_net(net)}
     search = selection.gap_search_mm
     around = pieces_in(board, sensor.layer, sensor.geometry.buffer(search),
                        lambda it: it.net not in own)
@@ -118,14 +121,29 @@ def ground_fill_ratio(board: Board, sensor: Sensor, others: Sequence[Sensor], gr
     if ring.area <= 1e-9:
         return 0.0
     copper = copper_near(board, sensor.layer, ring, lambda net: net == ground)
-    return min(1.0, float(copper.intersection(ring).area / ring.area))
+    return min(1.0, float(robust_intersection(copper, ring).area / ring.area))
+
+
+def robust_intersection(a: BaseGeometry, b: BaseGeometry) -> BaseGeometry:
+    """``a ∩ b``; odd real copper (self-touching hatch, slivers) can make
+    GEOS give up, and then both are repaired first (``make_valid``, and a
+    zero buffer as the last resort)."""
+    try:
+        return a.intersection(b)
+    except shapely.errors.GEOSException:
+        pass
+    try:
+        return shapely.make_valid(a).intersection(shapely.make_valid(b))
+    except shapely.errors.GEOSException:
+        return a.buffer(0).intersection(b.buffer(0))
 
 
 def nearest_sensor(sensor: Sensor, others: Sequence[Sensor]) -> tuple[str, float | None]:
-    """The nearest other electrode (any layer) and the edge-to-edge distance."""
+    """The nearest other electrode on the same layer and the edge-to-edge
+    distance (an electrode on another layer is not at a distance of zero)."""
     best: tuple[float, str] | None = None
     for other in others:
-        if other.name == sensor.name:
+        if other.name == sensor.name or other.layer != sensor.layer:
             continue
         dist = float(sensor.geometry.distance(other.geometry))
         if best is None or (dist, other.name) < best:

@@ -158,9 +158,14 @@ def test_partly_read_board_is_not_clean(capsys: pytest.CaptureFixture[str]) -> N
     assert code == 1 and "read-incomplete" in out and "padaudit_fixture_unknown" in out
 
 
-def test_no_sensors_fails(capsys: pytest.CaptureFixture[str]) -> None:
-    code, out, _ = audit(capsys, str(FIXTURES / "no-sensors--bad.kicad_pcb"))
+def test_configured_electrodes_not_found_fails(capsys: pytest.CaptureFixture[str]) -> None:
+    code, out, _ = audit(capsys, str(FIXTURES / "configured" / "no-sensors--bad.kicad_pcb"))
     assert code == 1 and "no-sensors" in out
+
+
+def test_board_without_electrodes_is_a_calm_note(capsys: pytest.CaptureFixture[str]) -> None:
+    code, out, _ = audit(capsys, str(FIXTURES / "no-electrodes--bad.kicad_pcb"))
+    assert code == 0 and "no touch electrodes found" in out and "no-sensors" not in out
 
 
 def test_rules_lists_every_rule(capsys: pytest.CaptureFixture[str]) -> None:

@@ -33,9 +33,9 @@ def run(capsys: pytest.CaptureFixture[str], *args: str) -> tuple[int, str, str]:
     return code, out, err
 
 
-def test_no_sensors_advice_names_the_real_key() -> None:
+def test_no_electrodes_advice_names_the_real_key() -> None:
     """The fix advice once said ``netclasses``, a key the configuration rejects."""
-    (rule,) = [r for r in all_rules() if r.rule_id == "no-sensors"]
+    (rule,) = [r for r in all_rules() if r.rule_id == "no-electrodes"]
     listed = rule.fix.split("[tool.padaudit.sensors] (", 1)[1].split(")", 1)[0]
     keys = {k.strip() for k in listed.split(",")}
     assert keys <= set(SensorSelection.__dataclass_fields__), keys

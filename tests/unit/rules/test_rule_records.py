@@ -19,7 +19,7 @@ from auditor.model.items import ReadWarning
 from auditor.model.results import PadMetrics
 from auditor.rules.context import RuleContext
 from auditor.rules.registry import all_rules, run_rules
-from auditor.sensors.model import LayerShadow, Neighbour, TraceRun
+from auditor.sensors.model import LayerShadow, Neighbour, Sensor, TraceRun
 
 
 def ids(ctx: RuleContext, rule_id: str) -> list[str]:
@@ -41,6 +41,19 @@ def slider(areas: tuple[float, ...], lengths: tuple[float, ...]) -> RuleContext:
     return context(*segs)
 
 
+def bare(*sensors: Sensor) -> RuleContext:
+    """A context with no overlay: the finger touches the board."""
+    ctx = context(*sensors)
+    return replace(ctx, settings=replace(ctx.settings, overlay_thickness_mm=0.0,
+                                         overlay_electrical_mm=0.0))
+
+
+def configured(*sensors: Sensor) -> RuleContext:
+    """A context whose configuration names electrodes."""
+    ctx = context(*sensors)
+    return replace(ctx, settings=replace(ctx.settings, electrodes_configured=True))
+
+
 @dataclass(frozen=True)
 class Pair:
     rule_id: str
@@ -56,7 +69,9 @@ PAIRS = [
     Pair("electrode-too-large", context(sensor(diameter_mm=20.5)),
          context(sensor(diameter_mm=19.5))),
     Pair("electrode-far-side", context(sensor(layer="B.Cu")), context(sensor())),
-    Pair("electrode-mask-open", context(sensor(exposed=True)), context(sensor())),
+    # the finger on the board itself (no overlay) vs under the 2 mm cover
+    Pair("electrode-mask-open", bare(sensor(exposed=True)), bare(sensor())),
+    Pair("electrode-mask-open-covered", context(sensor(exposed=True)), context(sensor())),
     Pair("electrode-paste", context(sensor(pasted=True)), context(sensor())),
     Pair("electrodes-too-close",
          context(sensor("TOUCH1", surroundings=surroundings(nearest_sensor="TOUCH2",
@@ -115,7 +130,8 @@ PAIRS = [
          slider((72,) * 4, (30, 30, 30, 49))),
     Pair("read-incomplete", context(sensor(), read_warnings=(ReadWarning("unknown-token", "x"),)),
          context(sensor())),
-    Pair("no-sensors", context(), context(sensor())),
+    Pair("no-sensors", configured(), configured(sensor())),
+    Pair("no-electrodes", context(), context(sensor())),
     Pair("cp-too-high", context(sensor(), metrics={"TOUCH1": metrics(cp=31.0)}),
          context(sensor(), metrics={"TOUCH1": metrics(cp=29.0)})),
     Pair("delta-c-low", context(sensor(), metrics={"TOUCH1": metrics(dc=0.09)}),

@@ -30,7 +30,7 @@ def _cue_board(tmp_path: Path) -> Board:
     # 1. strong name cue, through a series resistor
     round_button(board, "E1", (8.0, 8.0), 8.0, "TOUCH1")
     resistor(board, "R1", (20.0, 4.0), "TOUCH1", "TOUCH1_R")
-    # 2. automatic net name, in the project's net class "CapTouch", straight to U1
+    # 2. automatic net name, in the project's net class "TouchKeys", straight to U1
     round_button(board, "E2", (8.0, 20.0), 8.0, "Net-(E2-Pad1)")
     # 3. net-less 12 mm square around a 1 mm anchor pad, through R3
     anchor = board.footprint("Test:Square_12mm", "E3", "pad", at=(8.0, 36.0))
@@ -67,8 +67,8 @@ def _cue_board(tmp_path: Path) -> Board:
                    net="BTN_UP" if i <= 2 else "GND")
     controller(board, PINS)
     path = tmp_path / "cues.kicad_pcb"
-    project = {"net_settings": {"classes": [{"name": "Default"}, {"name": "CapTouch"}],
-                                "netclass_assignments": {"Net-(E2-Pad1)": "CapTouch"}}}
+    project = {"net_settings": {"classes": [{"name": "Default"}, {"name": "TouchKeys"}],
+                                "netclass_assignments": {"Net-(E2-Pad1)": "TouchKeys"}}}
     path.with_suffix(".kicad_pro").write_text(json.dumps(project, indent=2), encoding="utf-8")
     return written(board, tmp_path, "cues")
 
@@ -94,7 +94,7 @@ def test_every_cue_finds_its_electrode(found: tuple[dict[str, Sensor], tuple[Rej
 def test_reasons_name_the_cue(found: tuple[dict[str, Sensor], tuple[Rejected, ...]]) -> None:
     sensors, _ = found
     assert sensors["TOUCH1"].reason == "net name has 'touch'"
-    assert sensors["E2"].reason == "net class 'CapTouch'"
+    assert sensors["E2"].reason == "net class 'TouchKeys'"
     assert "net-less copper" in sensors["E3"].reason and "through R3 to U1" in sensors["E3"].reason
     assert "zone" in sensors["knob"].reason and "through R4 to U1" in sensors["knob"].reason
     assert "pad" in sensors["J5"].reason and "through R5 to U1" in sensors["J5"].reason
