@@ -55,6 +55,9 @@ class AuditOptions:
     baseline: str | None = None
     #: Accept every current finding (what ``--write-baseline`` records).
     accept_all: bool = False
+    #: Without ``baseline``, use the configuration's ``baseline`` key (the
+    #: gated commands; never the other side of a comparison).
+    config_baseline: bool = False
 
 
 @dataclass(frozen=True)
@@ -175,7 +178,14 @@ def run_audit(board_path: str | Path, options: AuditOptions | None = None) -> Re
         sensors, solve_sensors(board, sensors, setup, opts, quick) if opts.solve else {})
     extras = _precise_extras(board, sensors, setup) if opts.solve and opts.precise else None
     unsolved = {**_unsolved(sensors, metrics, opts), **broken} if opts.solve else {}
+    if opts.config_baseline and not opts.baseline and setup.config.baseline:
+        opts = replace(opts, baseline=setup.config.baseline)
     return with_baseline(build_report(board, sensors, metrics, setup, extras, unsolved), opts)
+
+
+def configured_baseline(board_path: str | Path, config_path: str | None = None) -> str:
+    """The baseline file the configuration for ``board_path`` names, or ``""``."""
+    return discover_config(board_path, config_path).baseline
 
 
 def with_baseline(report: Report, options: AuditOptions) -> Report:

@@ -133,6 +133,20 @@ def mirror_root(copy: Path) -> Path:
     return copy.parent
 
 
+def fetch_companion(root: Path, copy: Path, wanted: Path, rev: str) -> bool:
+    """Write into the temporary folder of ``copy`` the file ``wanted`` (a path
+    inside that folder) as it is at ``rev`` (``""``: staged) in the
+    repository at ``root``, for files a configuration names (its baseline).
+    False when git has no such file."""
+    mirror = mirror_root(copy)
+    relative = PurePosixPath(wanted.relative_to(mirror).as_posix())
+    data = blob(root, rev, relative)
+    if data is None:
+        return False
+    _write(mirror, relative, data)
+    return True
+
+
 def check_board_at(file: str | Path, rev: str) -> None:
     """Raise the error :func:`board_at` would, without copying anything; lets
     a command refuse a bad revision before it prints a report."""

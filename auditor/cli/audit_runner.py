@@ -37,11 +37,13 @@ def options_from_args(args: argparse.Namespace) -> AuditOptions:
 
 
 def gated_options(args: argparse.Namespace) -> AuditOptions:
-    """:func:`options_from_args` with the gate's ``--baseline`` or
-    ``--write-baseline`` (which accepts every current finding)."""
+    """:func:`options_from_args` with the gate's ``--baseline`` (else the
+    configuration's ``baseline``) or ``--write-baseline`` (which accepts
+    every current finding)."""
     return dataclasses.replace(options_from_args(args),
                                baseline=getattr(args, "baseline", None),
-                               accept_all=bool(getattr(args, "write_baseline", None)))
+                               accept_all=bool(getattr(args, "write_baseline", None)),
+                               config_baseline=True)
 
 
 def _board_auditor(args: argparse.Namespace) -> AuditFn:
