@@ -14,6 +14,7 @@ from importlib import resources
 from typing import TYPE_CHECKING, Any, TextIO
 
 from auditor.decide.records import DecidedFinding, Report, SensorResult
+from auditor.decide.summary import count_findings
 from auditor.model.results import PadMetrics
 from auditor.report.rounding import significant
 from auditor.report.verdicts import electrode_verdicts
@@ -139,6 +140,13 @@ def _count_by_severity(findings: Iterable[DecidedFinding]) -> dict[str, int]:
     return counts
 
 
+def _accepted(report: Report) -> dict[str, int]:
+    """The counts the verdict line shows beside the severities."""
+    counts = count_findings(report.findings,
+                            len(report.stale_waivers) + len(report.stale_baseline))
+    return {"waived": counts.waived, "baselined": counts.baselined, "stale": counts.stale}
+
+
 def to_document(report: Report) -> dict[str, Any]:
     """The report as plain JSON-ready data (schema version :data:`SCHEMA_VERSION`)."""
     info = report.info
@@ -157,7 +165,7 @@ def to_document(report: Report) -> dict[str, Any]:
         "summary": {
             "exit_code": report.exit_code, "sensors": len(report.sensors),
             "findings": _count_by_severity(report.findings),
-            "failing": len(failing_ids),
+            "failing": len(failing_ids), **_accepted(report),
         },
         "sensors": [_sensor(r, verdicts[r.sensor.name]) for r in report.sensors],
         "findings": [_finding(d, id(d) in failing_ids) for d in report.findings],

@@ -144,3 +144,14 @@ def test_against_a_revision(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> 
     assert verdicts == [text.splitlines()[-1]]
     assert verdicts[0].startswith("FAIL  0 errors") and verdicts[0].endswith("(exit 1)")
     assert "SW_POWER lost more than 20 % of ΔC/Cp" in verdicts[0]
+
+
+def test_json_summary_counts_are_the_verdict_lines(tmp_path: Path) -> None:
+    target = tmp_path / "r.json"
+    code, line = _emit(sample.sample_report(), "--format", "json", "--output", str(target))
+    summary = json.loads(target.read_text())["summary"]
+    assert summary["exit_code"] == code
+    counts = (f"{summary['findings']['error']} errors", f"{summary['waived']} waived",
+              f"{summary['baselined']} baselined", f"{summary['stale']} stale")
+    assert all(part in line for part in counts), (counts, line)
+    assert (summary["waived"], summary["baselined"], summary["stale"]) == (1, 1, 1)
