@@ -18,6 +18,7 @@ from auditor.report.sensors_doc import sensors_document, sensors_text
 from auditor.sensors.find import find_sensors
 from auditor.sensors.measure import measure
 from auditor.sensors.selection import SensorSelection, selection_from_mapping
+from auditor.sensors.suggest import config_lines, structure_notes
 
 CONFIG_HINT = (
     "name them in configuration, e.g. in pyproject.toml:\n"
@@ -72,26 +73,31 @@ def _configured_selection(args: argparse.Namespace) -> SensorSelection:
 
 def run(args: argparse.Namespace) -> int:
     """List the sensors; exit 1 when there are none."""
-    from auditor.read.kicad_pro import read_project_netclasses
+    from auditor.read.kicad_pro import project_path_for
     from auditor.read.reader import read_board
 
     board = read_board(args.board)
     selection = selection_from_args(args, _configured_selection(args))
-    project = read_project_netclasses(args.board)
-    classes = tuple(board.netclasses) + project.classes
-    sensors, rejects = find_sensors(board, selection, classes)
+    sensors, rejects = find_sensors(board, selection)
     sensors = measure(board, sensors, selection)
-    notes = [f"{w.code}: {w.message}" for w in board.warnings]
-    if not project.found:
-        notes.append(f"no project file {project.path}: net classes from the board only")
+    notes = [f"{w.code}: {w.message}" for w in board.warnings] + list(structure_notes(sensors))
+    if not board.project_file:
+        notes.append(f"no project file {project_path_for(args.board)}: net classes from "
+                     "the board only")
     if args.json:
         document = sensors_document(args.board, sensors, rejects, notes)
+        if not sensors:
+            document["suggested_config"] = list(config_lines(rejects))
         sys.stdout.write(json.dumps(document, sort_keys=True, indent=2) + "\n")
     else:
         write_lines(sys.stdout, sensors_text(args.board, sensors, rejects, notes).splitlines())
     if not sensors:
-        sys.stderr.write(f"padaudit: no sense electrodes found on {args.board}; "
-                         f"{CONFIG_HINT}\n")
+        lines = config_lines(rejects)
+        hint = CONFIG_HINT if not lines else (
+            "to take the candidates above, add to [tool.padaudit.sensors] in pyproject.toml "
+            "(or [sensors] in padaudit.toml):\n" + "".join(f"  {line}\n" for line in lines))
+        sys.stderr.write(f"padaudit: no sense electrodes found on {args.board}; {hint}"
+                         + ("" if hint.endswith("\n") else "\n"))
         return 1
     return 0
 

@@ -7,8 +7,10 @@ because the board never changes, the cache never goes stale.
 
 from __future__ import annotations
 
+from collections.abc import Callable, Hashable
 from dataclasses import dataclass
 from functools import cached_property
+from typing import TypeVar, cast
 
 from shapely import STRtree
 from shapely.geometry.base import BaseGeometry
@@ -27,6 +29,8 @@ from auditor.model.items import (
     Via,
     Zone,
 )
+
+_T = TypeVar("_T")
 
 
 @dataclass(frozen=True)
@@ -56,6 +60,11 @@ class Board:
         The file's ``(version N)`` (format date, e.g. 20240108; 4 for KiCad 4).
     copper_layers:
         Copper layer names in stack order, front first.
+    netclasses:
+        The board's own net classes (KiCad 5) and those of the project file
+        beside it (KiCad 6+), read by ``read_board``.
+    project_file:
+        The ``.kicad_pro`` those came from, or ``""`` when there was none.
     """
 
     path: str
@@ -72,6 +81,23 @@ class Board:
     outline: Outline
     netclasses: tuple[NetClass, ...] = ()
     warnings: tuple[ReadWarning, ...] = ()
+    project_file: str = ""
+
+    def derived(self, key: Hashable, build: Callable[[], _T]) -> _T:
+        """A view derived from the board, built once per ``key`` and kept on
+        the board (which never changes, so the view never goes stale).
+
+        Later stages keep their own indexes here instead of in module-level
+        caches keyed by ``id(board)``.
+        """
+        cache = self._derived_cache
+        if key not in cache:
+            cache[key] = build()
+        return cast(_T, cache[key])
+
+    @cached_property
+    def _derived_cache(self) -> dict[Hashable, object]:
+        return {}
 
     @cached_property
     def pads(self) -> tuple[Pad, ...]:

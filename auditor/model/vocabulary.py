@@ -21,7 +21,10 @@ TouchSide = Literal["front", "back"]
 #: Where a pad's copper sits in a described stack: on the touch side or the far side.
 PadSide = Literal["touch", "far"]
 #: What an electrode is for.
-SensorKind = Literal["button", "slider", "wheel", "proximity", "mutual-tx", "mutual-rx"]
+#: (``keyswitch``: one pad of an electro-capacitive key switch, a sensor that
+#: no finger touches directly, so no touch rule judges it.)
+SensorKind = Literal["button", "slider", "wheel", "proximity", "mutual-tx", "mutual-rx",
+                     "keyswitch"]
 #: Severity names, worst first (the order ``--fail-on`` lists them).
 SeverityName = Literal["error", "warning", "info"]
 

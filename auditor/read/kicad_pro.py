@@ -13,11 +13,12 @@ From KiCad 6 on, net classes live in the project file, not the board
 from __future__ import annotations
 
 import json
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import Any
 
 from auditor.errors import ConfigError
+from auditor.model.board import Board
 from auditor.model.items import NetClass
 
 
@@ -56,6 +57,23 @@ def read_project_netclasses(board_path: str | Path) -> ProjectNetClasses:
     except (OSError, UnicodeDecodeError) as exc:
         raise ConfigError(path, f"cannot read project file: {exc}") from None
     return ProjectNetClasses(str(path), True, parse_project_netclasses(text, str(path)))
+
+
+def with_project_netclasses(board: Board) -> Board:
+    """``board`` with the net classes of the project file beside it added (and
+    ``project_file`` set), so no later stage reads the disk; unchanged when
+    there is no project file.
+
+    Raises
+    ------
+    ConfigError
+        As :func:`read_project_netclasses`.
+    """
+    project = read_project_netclasses(board.path)
+    if not project.found:
+        return board
+    return replace(board, netclasses=tuple(board.netclasses) + project.classes,
+                   project_file=project.path)
 
 
 def parse_project_netclasses(text: str, source: str) -> tuple[NetClass, ...]:

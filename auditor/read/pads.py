@@ -135,7 +135,8 @@ def placed(params: ShapeParams, ctx: ReadContext, angle_deg: float,
     def move(coords: geo.Coords) -> geo.Coords:
         return geo.place(coords + (ox, oy), angle_deg, cx, cy)
 
-    return shapely.transform(local, move)
+    # Rotating a custom outline can make nearly touching edges cross: repair.
+    return geo.clean(shapely.transform(local, move))
 
 
 def _cached_ring(params: ShapeParams, ctx: ReadContext) -> geo.Coords | None:

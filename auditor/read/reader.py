@@ -28,6 +28,7 @@ from auditor.read.context import (
     text_of,
 )
 from auditor.read.footprints import read_footprint
+from auditor.read.kicad_pro import with_project_netclasses
 from auditor.read.outline import build_outline
 from auditor.read.parts import BoardParts, EdgePiece
 from auditor.read.sexpr import Locator, Node, decode, gc_paused, iter_top, parse
@@ -40,7 +41,8 @@ Handler = Callable[[Node, ReadContext, BoardParts], None]
 
 
 def read_board(path: str | Path) -> Board:
-    """Read a KiCad board file (never writes to it).
+    """Read a KiCad board file (never writes to it), with the net classes of
+    the ``.kicad_pro`` project file beside it.
 
     Raises
     ------
@@ -57,7 +59,8 @@ def read_board(path: str | Path) -> Board:
         raise BoardFileError(path, "no such file") from None
     except OSError as exc:
         raise BoardFileError(path, f"cannot read: {exc.strerror or exc}") from None
-    return read_board_text(decode(data, path), str(path))
+    # KiCad 6+ keeps net classes in the project file: they belong to the board.
+    return with_project_netclasses(read_board_text(decode(data, path), str(path)))
 
 
 def _boards_inside(folder: Path) -> str:

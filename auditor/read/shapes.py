@@ -15,6 +15,7 @@ from dataclasses import dataclass
 
 import numpy as np
 import shapely
+from shapely.errors import GEOSException
 from shapely.geometry import Polygon
 from shapely.geometry.base import BaseGeometry
 
@@ -226,8 +227,14 @@ def kind_of(head: str) -> str | None:
 
 
 def union(parts: list[BaseGeometry]) -> BaseGeometry:
-    """Union of polygonal parts (empty polygon for none)."""
-    parts = [p for p in parts if not p.is_empty]
+    """Union of polygonal parts (empty polygon for none), repaired: real
+    footprints hold self-crossing primitives (arcs approximated twice)."""
+    parts = [geo.clean(p) for p in parts if not p.is_empty]
     if not parts:
         return Polygon()
-    return parts[0] if len(parts) == 1 else shapely.union_all(parts)
+    if len(parts) == 1:
+        return parts[0]
+    try:
+        return geo.clean(shapely.union_all(parts))
+    except GEOSException:  # nearly coincident edges: snap-round on a 0.1 µm grid
+        return geo.clean(shapely.union_all(parts, grid_size=1e-4))

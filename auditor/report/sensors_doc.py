@@ -45,8 +45,9 @@ def sensor_record(sensor: Sensor) -> dict[str, Any]:
             "length_mm": p.length_mm, "vias": p.vias, "layers": list(p.layers),
             "widths_mm": sorted({r.width_mm for r in p.runs}),
             "controller": f"{p.controller_ref}.{p.controller_pin}" if p.controller_ref else "",
+            "controller_ref": p.controller_ref,
             "series_ref": p.series_ref, "series_to_pin_mm": p.series_to_pin_mm,
-            "complete": p.complete, "nets": list(p.nets),
+            "complete": p.complete, "off_board": p.off_board, "nets": list(p.nets),
             "neighbours": [{"net": n.net, "parallel_mm": n.parallel_mm,
                             "min_distance_mm": n.min_distance_mm, "crossings": n.crossings,
                             "noisy": n.noisy, "sense": n.sense} for n in p.neighbours],
@@ -85,6 +86,7 @@ def sensors_text(board_path: str, sensors: Sequence[Sensor],
             p = s.path
             end = f"{p.controller_ref} pin {p.controller_pin}" if p.complete else \
                 "no controller pin reached"
+            end += " (controller off-board)" if p.off_board else ""
             series = f", through {p.series_ref}" if p.series_ref else ", no series part"
             lines.append(f"    trace {p.length_mm:.1f} mm, {p.vias} via(s){series}, to {end}")
     if rejects:

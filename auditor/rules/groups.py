@@ -46,11 +46,20 @@ def interleaved(members: tuple[Sensor, ...]) -> bool:
 
 
 def _area_by_net(members: tuple[Sensor, ...]) -> dict[str, float]:
-    """Copper area per segment net (two end pads on one net are one segment)."""
-    areas: dict[str, float] = {}
+    """Copper area per segment net. Two end pads on one net (split ends) are
+    one channel drawn either as two halves or as two whole segments; each
+    such net counts as whichever reading (sum or one piece) lies nearer to
+    the single-piece segments' median, so both designs compare fairly."""
+    pieces: dict[str, list[float]] = {}
     for s in members:
-        key = s.nets[0] if s.nets else s.name
-        areas[key] = areas.get(key, 0.0) + s.area_mm2
+        pieces.setdefault(s.nets[0] if s.nets else s.name, []).append(s.area_mm2)
+    singles = sorted(a[0] for a in pieces.values() if len(a) == 1)
+    median = singles[len(singles) // 2] if singles else None
+    areas: dict[str, float] = {}
+    for net, found in pieces.items():
+        readings = (sum(found), sum(found) / len(found))
+        areas[net] = (readings[0] if median is None
+                      else min(readings, key=lambda a: abs(a - median)))
     return areas
 
 

@@ -6,7 +6,7 @@ Names are split into word-ish tokens (``TOUCH_KEY3`` → touch, key, 3;
 * **strong** words name a touch electrode on their own, and also count as a
   prefix of a token (``TOUCHPAD``, ``SENSE3``): touch, slider, wheel, prox,
   electrode, sense; also after a ``cap``/``c`` prefix for capacitive
-  (``CAPSENSE0``, ``CTOUCH``);
+  (``CSENSE0``, ``CTOUCH``);
 * **weak** words are common abbreviations that also name other things (a
   mechanical ``BTN``, a test point ``TP``, an LED's ``CAP``); they count only
   as whole tokens, never inside KiCad's automatic names (``Net-(TP1-Pad1)``),
@@ -34,7 +34,7 @@ OTHER_FUNCTION_WORDS = frozenset({
     "rst", "reset", "boot", "gnd", "vss", "sw", "irq", "int", "scl", "sda", "clk", "pwm",
     "tx", "rx", "spi", "usb", "test", "dbg", "swd", "swdio", "swclk", "jtag",
 })
-SLIDER_WORDS = ("slider", "sld", "slide")
+SLIDER_WORDS = ("slider", "sld", "slide", "fader")
 WHEEL_WORDS = ("wheel", "whl", "rotary", "scroll")
 PROXIMITY_WORDS = ("prox", "proximity", "guard", "loop")
 
@@ -93,17 +93,25 @@ def name_cue(name: str) -> NameCue | None:
 
 
 def has_word(name: str, words: tuple[str, ...]) -> bool:
-    """True when a token of ``name`` starts with one of ``words``."""
-    return any(tok.startswith(w) for tok in tokens(name) for w in words)
+    """True when a token of ``name`` starts with one of ``words``, or holds one
+    of five letters or more (``TOUCHROTARY``, ``TouchSlider3``).
+
+    >>> has_word("TOUCHROTARY1B", ("rotary",)), has_word("SLDR", ("slider",))
+    (True, False)
+    """
+    toks = tokens(name)
+    return any(tok.startswith(w) or (len(w) >= 5 and w in tok) for tok in toks for w in words)
 
 
 def is_ground_name(net: str) -> bool:
     """Ground-like net names: GND, AGND, GND_ISO, VSS, GROUND, 0V ...
 
-    >>> [is_ground_name(n) for n in ("GND", "/p/AGND", "VSS", "GNDA", "VSENSE")]
-    [True, True, True, True, False]
+    >>> [is_ground_name(n) for n in ("GND", "/p/AGND", "VSS", "GNDA", "VSENSE", "USBGND")]
+    [True, True, True, True, False, True]
     """
-    return bool(_GROUND.match(leaf(net).upper()))
+    name = leaf(net).upper()
+    # Returns named for their domain (USBGND, SHIELD_GND) are grounds too.
+    return bool(_GROUND.match(name)) or (not is_auto_name(net) and "GND" in name)
 
 
 def trailing_index(name: str) -> int | None:

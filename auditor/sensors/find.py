@@ -20,33 +20,32 @@ structural candidates that miss by less than half, come back as rejects.
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass
 
 from auditor.model.board import Board
 from auditor.model.items import NetClass
 from auditor.sensors.cues import is_ground_name, name_cue
+from auditor.sensors.late import LateJudgements
+from auditor.sensors.matrix import key_footprints
+from auditor.sensors.model import Rejected as Rejected  # re-exported: callers import it here
 from auditor.sensors.model import Sensor
-from auditor.sensors.pieces import Piece, outer_layers, pads_by_net, pieces_on
+from auditor.sensors.pieces import (
+    Piece,
+    outer_layers,
+    pads_by_net,
+    pieces_on,
+    without_far_side_twins,
+)
 from auditor.sensors.reach import reach_of
+from auditor.sensors.roles import is_electrode_part, part_pads_only
 from auditor.sensors.selection import SensorSelection, matches
 from auditor.sensors.shaping import Candidate, shaped_sensors
+from auditor.sensors.siblings import SIBLING_FLOOR_MM2
 from auditor.sensors.spatial import net_copper_area
 
 #: Nets with more pads than this are supply or bus nets, never one electrode.
 MAX_PADS_ON_SENSE_NET = 12
 
 
-@dataclass(frozen=True)
-class Rejected:
-    """Copper that looked like an electrode but was not taken, and why."""
-
-    net: str
-    refs: tuple[str, ...]
-    layer: str
-    area_mm2: float
-    x_mm: float
-    y_mm: float
-    why: str
 
 
 def find_sensors(board: Board, selection: SensorSelection | None = None,
@@ -61,8 +60,8 @@ def find_sensors(board: Board, selection: SensorSelection | None = None,
     selection:
         What configuration says; defaults find electrodes automatically.
     netclasses:
-        Net classes to use; ``None`` takes the board's own (KiCad 5) plus the
-        project file beside it (KiCad 6+), when there is one.
+        Net classes to use; ``None`` takes the board's (its own and its
+        project file's, both loaded by ``read_board``).
 
     Returns
     -------
@@ -71,18 +70,9 @@ def find_sensors(board: Board, selection: SensorSelection | None = None,
         :func:`auditor.sensors.measure`), rejects sorted by net.
     """
     sel = selection or SensorSelection()
-    classes = tuple(netclasses) if netclasses is not None else all_netclasses(board)
+    classes = tuple(netclasses) if netclasses is not None else board.netclasses
     finder = _Finder(board, sel, classes)
     return finder.run()
-
-
-def all_netclasses(board: Board) -> tuple[NetClass, ...]:
-    """The board's inline net classes plus those of its project file, if present."""
-    from auditor.read.kicad_pro import read_project_netclasses
-
-    project = read_project_netclasses(board.path) if board.path else None
-    extra = project.classes if project is not None and project.found else ()
-    return tuple(board.netclasses) + tuple(extra)
 
 
 def classes_of(net: str, classes: Sequence[NetClass]) -> tuple[str, ...]:
@@ -100,13 +90,18 @@ def ground_net(board: Board, selection: SensorSelection) -> str:
     return max(sorted(names), key=lambda n: net_copper_area(board, n))
 
 
-class _Finder:
+class _Finder(LateJudgements):
     def __init__(self, board: Board, sel: SensorSelection, classes: tuple[NetClass, ...]):
         self.board, self.sel, self.classes = board, sel, classes
         self.grounds = {n for n in board.nets if is_ground_name(n)
                         or (sel.ground_nets and matches(n, sel.ground_nets))}
         self.accepted: list[Candidate] = []
         self.rejects: list[Rejected] = []
+        self.small: list[tuple[Piece, str]] = []  # touch-named pads under the floor
+        self.keys = key_footprints(board, sel.cue_min_area_mm2) if sel.automatic else {}
+        self.key_nets = {n for pair in self.keys.values() for n in pair.split("+")}
+        self.net_uids: tuple[str, ...] = ()
+        self.unreached: list[Piece] = []  # large copper whose net reaches no single pin
 
     def run(self) -> tuple[tuple[Sensor, ...], tuple[Rejected, ...]]:
         by_net: dict[str, list[Piece]] = {}
@@ -114,38 +109,22 @@ class _Finder:
             by_net.setdefault(piece.net, []).append(piece)
         for net in sorted(by_net):
             self._judge_net(net, sorted(by_net[net], key=lambda p: -p.area_mm2))
-        self._reject_unfilled_zones()
+        self.judge_late()
         sensors = shaped_sensors(self.board, self.sel, self.accepted)
         return sensors, tuple(sorted(self.rejects, key=lambda r: (r.net, r.layer, r.x_mm)))
-
-    def _reject_unfilled_zones(self) -> None:
-        """A zone that may be an electrode but has no fill in the file cannot be measured."""
-        outer = set(outer_layers(self.board))
-        for zone in self.board.zones:
-            if zone.is_rule_area or zone.fills or zone.net in self.grounds \
-                    or not outer & set(zone.layers):
-                continue
-            named = (self.sel.zones and zone.name and matches(zone.name, self.sel.zones)) \
-                or self._net_config(zone.net) or name_cue(zone.net) or name_cue(zone.name)
-            if named:
-                c = zone.outline.centroid
-                self.rejects.append(Rejected(
-                    zone.net, (), zone.layers[0], round(float(zone.outline.area), 6),
-                    round(c.x, 6), round(c.y, 6),
-                    f"zone {zone.name or zone.net!r} has no fill in the file, so its copper is "
-                    "unknown (refill the zones in KiCad and save)"))
 
     def _pieces(self) -> list[Piece]:
         pad_counts = {net: len(pads) for net, pads in pads_by_net(self.board).items()}
         nets = {n for n in self.board.nets if n and n not in self.grounds
                 and not matches(n, self.sel.exclude_nets)
-                and (pad_counts.get(n, 0) <= MAX_PADS_ON_SENSE_NET or self._net_config(n))}
+                and (pad_counts.get(n, 0) <= MAX_PADS_ON_SENSE_NET or self._net_config(n)
+                     or n in self.key_nets)}
         found: list[Piece] = []
         if not self.board.copper_layers:
             return found
         for layer in outer_layers(self.board):
             found.extend(pieces_on(self.board, layer, nets))
-        return _without_through_hole_twins(found, self.board.copper_layers[0])
+        return without_far_side_twins(found, self.board.copper_layers[0])
 
     def _net_config(self, net: str) -> str:
         sel = self.sel
@@ -188,7 +167,16 @@ class _Finder:
         elif self.sel.automatic and not taken:
             self._judge_auto(net, rest)
 
+    def _is_never_electrode(self, piece: Piece) -> bool:
+        """Pads only, all of controllers, connectors or modules, and smaller than
+        an electrode found by structure (a many-pad footprint of large pads with
+        no words is an electrode footprint, not a controller)."""
+        return set(piece.sources) <= {"pad", "custom pad"} \
+            and piece.area_mm2 < self.sel.min_area_mm2 and part_pads_only(
+            self.board, piece.pads, self.sel.controller_min_pads)
+
     def _judge_configured(self, net: str, pieces: list[Piece], reason: str) -> None:
+        pieces = [p for p in pieces if not self._is_never_electrode(p)]
         big = [p for p in pieces if p.area_mm2 >= self.sel.cue_min_area_mm2]
         if not big and pieces and not self._is_part_pad(pieces[0]):
             big = pieces[:1]
@@ -203,19 +191,34 @@ class _Finder:
             len(self.board.footprint(uid).pads) >= 2 for uid in piece.footprint_uids)
 
     def _judge_auto(self, net: str, pieces: list[Piece]) -> None:
+        pieces = [p for p in pieces if not self._is_never_electrode(p)]
         cue, strong = self._cue(net, pieces[0] if pieces else None)
+        # Pieces of one net (a slider's split ends) are not parts to each other.
+        self.net_uids = tuple(sorted({u for p in pieces if p.area_mm2 >= self.sel.cue_min_area_mm2
+                                      or not self._is_part_pad(p) for u in p.footprint_uids}))
         took = False
         for piece in pieces:
-            took |= self._judge_auto_piece(piece, cue, strong)
+            # A piece's own footprint words name it better than the net's first piece's.
+            own = self._cue(net, piece) if piece is not pieces[0] else (cue, strong)
+            took |= self._judge_auto_piece(piece, *(own if own[0] else (cue, strong)))
         if cue and not took and pieces:
             top = pieces[0]
-            if top.area_mm2 < self.sel.cue_min_area_mm2 and not self._is_part_pad(top):
+            if top.area_mm2 < self.sel.cue_min_area_mm2 and not self._is_part_pad(top) \
+                    and top.area_mm2 >= SIBLING_FLOOR_MM2:
+                self.small.append((top, cue))
+            elif top.area_mm2 < self.sel.cue_min_area_mm2 and not self._is_part_pad(top):
                 self._reject(top, f"{cue}, but its largest copper is {top.area_mm2:.1f} mm² "
                              f"(needs {self.sel.cue_min_area_mm2:g} mm²)")
 
     def _judge_auto_piece(self, piece: Piece, cue: str, strong: bool) -> bool:
         sel = self.sel
-        reach = reach_of(self.board, piece.net, piece.footprint_uids, sel)
+        uids = piece.footprint_uids
+        if uids and all(u in self.keys for u in uids) and piece.area_mm2 >= sel.cue_min_area_mm2:
+            refs = ", ".join(self.board.footprint(u).ref for u in uids)
+            self._accept(piece, f"{cue + '; ' if cue else ''}pad of key {refs} in a matrix of "
+                         "pad pairs on row and column nets")
+            return True
+        reach = reach_of(self.board, piece.net, self.net_uids, sel)
         area = piece.area_mm2
         if cue and area >= sel.cue_min_area_mm2 and (strong or reach.ok):
             self._accept(piece, cue if reach.ok else f"{cue} ({reach.why})")
@@ -227,6 +230,7 @@ class _Finder:
                          f"{reach.why.removeprefix('net ')}")
             return True
         elif area >= sel.min_area_mm2 and len(reach.parts) <= 3 and not cue:
+            self.unreached.append(piece)
             self._reject(piece, f"{area:.0f} mm² of copper, but {reach.why}")
         elif area >= 0.5 * sel.min_area_mm2 and reach.ok and not cue:
             self._reject(piece, f"{area:.1f} mm² is below the {sel.min_area_mm2:g} mm² "
@@ -240,10 +244,12 @@ class _Finder:
         cue = name_cue(net)
         if cue:
             return f"net name has {cue.word!r}", cue.strong
-        for uid in piece.footprint_uids if piece else ():
+        for uid in piece.owner_uids if piece else ():
             fp = self.board.footprint(uid)
             lib_cue = name_cue(fp.lib_id.split(":")[-1]) or name_cue(fp.value)
-            if lib_cue and lib_cue.strong:
+            ref_cue = name_cue(fp.ref)  # TOUCH3, SLIDER1: a reference prefix names it too
+            if lib_cue and lib_cue.strong or is_electrode_part(fp) or (
+                    ref_cue is not None and ref_cue.strong):
                 return f"footprint {fp.ref} is {fp.lib_id or fp.value!r}", True
         return "", False
 
@@ -255,14 +261,3 @@ class _Finder:
         refs = tuple(sorted({self.board.footprint(u).ref for u in piece.footprint_uids}))
         self.rejects.append(Rejected(piece.net, refs, piece.layer, round(piece.area_mm2, 6),
                                      round(c.x, 6), round(c.y, 6), why))
-
-
-def _without_through_hole_twins(pieces: list[Piece], front_layer: str) -> list[Piece]:
-    """Drop a back piece that is only the far side of through-hole pads seen on the front."""
-    def key(p: Piece) -> tuple[str, tuple[tuple[str, str], ...]] | None:
-        if not p.pads or not set(p.sources) <= {"pad", "custom pad"}:
-            return None
-        return p.net, tuple(sorted((q.footprint_uid, q.number) for q in p.pads))
-
-    front = {key(p) for p in pieces if p.layer == front_layer} - {None}
-    return [p for p in pieces if p.layer == front_layer or key(p) not in front]

@@ -13,7 +13,7 @@ from typing import Literal
 
 from shapely.geometry.base import BaseGeometry
 
-SensorKind = Literal["button", "slider", "wheel", "proximity", "mutual-tx", "mutual-rx"]
+from auditor.model.vocabulary import SensorKind
 
 
 @dataclass(frozen=True)
@@ -66,6 +66,8 @@ class SensePath:
     under_electrodes: tuple[str, ...] = ()  # other sensors it passes under/beside
     complete: bool = True  # False when the path could not be followed to a pin
     nets: tuple[str, ...] = ()  # nets along the path: electrode's, then after the series part
+    #: The path ends at a connector (``controller_ref``) to a controller on another board.
+    off_board: bool = False
 
 
 @dataclass(frozen=True)
@@ -104,7 +106,12 @@ class Sensor:
 
     ``name`` is unique on the board and stable across re-saves (reference or
     net based). ``x_mm``/``y_mm`` is the copper's centroid, or a point on the
-    copper when the centroid falls outside it (a loop). ``group`` and ``index`` order slider/wheel segments.
+    copper when the centroid falls outside it (a loop).
+
+    ``group`` names the slider, wheel or mutual pair the electrode belongs to
+    (all its segments share it) and is empty for a lone electrode; ``index``
+    orders the segments within the group. Rules use ``group`` to leave the
+    designed closeness of one group's segments alone.
     """
 
     name: str
@@ -149,3 +156,15 @@ def name_order(name: str) -> tuple[tuple[int, int | str], ...]:
 
     return tuple((1, int(part)) if part.isdigit() else (0, part)
                  for part in re.split(r"(\d+)", name) if part)
+
+@dataclass(frozen=True)
+class Rejected:
+    """Copper that looked like an electrode but was not taken, and why."""
+
+    net: str
+    refs: tuple[str, ...]
+    layer: str
+    area_mm2: float
+    x_mm: float
+    y_mm: float
+    why: str

@@ -21,11 +21,12 @@ from collections.abc import Collection, Sequence
 from shapely import STRtree
 from shapely.geometry import LineString, MultiLineString
 from shapely.geometry.base import BaseGeometry
-from shapely.ops import nearest_points, unary_union
+from shapely.ops import nearest_points
 
 from auditor.model.board import Board
 from auditor.model.geometry import Arc
 from auditor.model.items import Track
+from auditor.sensors import robust
 from auditor.sensors.model import Neighbour, Sensor
 from auditor.sensors.noisy import is_noisy_net
 from auditor.sensors.selection import SensorSelection
@@ -100,7 +101,7 @@ def pin_field(board: Board, ref: str) -> BaseGeometry | None:
                  if math.dist(a, b) > 1e-3), default=0.0)
     radius = max(PIN_FIELD_MIN_MM, PIN_FIELD_PITCHES * pitch)
     copper = [s.geometry for p in fp.pads for s in p.copper]
-    return unary_union(copper).buffer(radius, quad_segs=4) if copper else None
+    return robust.union(copper).buffer(radius, quad_segs=4) if copper else None
 
 
 def _beside(board: Board, layer: str, width_mm: float, tracks: Sequence[Track],
@@ -111,7 +112,7 @@ def _beside(board: Board, layer: str, width_mm: float, tracks: Sequence[Track],
     tracks of one layer and width, outside ``field``."""
     reach = selection.neighbour_distance_mm + width_mm / 2
     lines: BaseGeometry = MultiLineString([centre_line(t) for t in tracks])
-    copper_of_path = whole_path = unary_union([t.geometry for t in tracks])
+    copper_of_path = whole_path = robust.union([t.geometry for t in tracks])
     if field is not None and field.intersects(copper_of_path):
         lines, copper_of_path = lines.difference(field), copper_of_path.difference(field)
         if copper_of_path.is_empty:
@@ -124,10 +125,10 @@ def _beside(board: Board, layer: str, width_mm: float, tracks: Sequence[Track],
         return []
     out = []
     for net, geoms in sorted(near.items()):
-        copper = unary_union(geoms)
+        copper = robust.union(geoms)
         if copper.is_empty:
             continue
-        length = float(lines.intersection(copper.buffer(reach, quad_segs=8)).length)
+        length = float(robust.intersection(lines, copper.buffer(reach, quad_segs=8)).length)
         distance = float(copper_of_path.distance(copper))
         out.append((net, length, distance, _closest_point(whole_path, copper_of_path,
                                                           copper, field)))

@@ -70,6 +70,7 @@ def _path(board: Board, sensor: Sensor, others: Sequence[Sensor], sel: SensorSel
         under_electrodes=sensors_beside_path(board, tracks, sensor, others,
                                              sel.neighbour_distance_mm),
         complete=complete,
+        off_board=reach.off_board,
         nets=tuple(dict.fromkeys(t.net for t in tracks)) or sensor.nets,
     )
 

@@ -20,10 +20,10 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from shapely.geometry.base import BaseGeometry
-from shapely.ops import unary_union
 
 from auditor.model.board import Board
 from auditor.model.items import HatchSettings
+from auditor.sensors import robust
 from auditor.sensors.model import LayerShadow, Sensor
 from auditor.sensors.spatial import pieces_in
 
@@ -56,10 +56,11 @@ def layer_shadow(board: Board, sensor: Sensor, layer: str) -> LayerShadow:
     under = _copper_under(board, sensor, layer)
     if under is None or area <= 0:
         return LayerShadow(layer, depth, 0.0, 0.0, "none")
-    inside = under.copper.intersection(sensor.geometry)
+    inside = robust.intersection(under.copper, sensor.geometry)
     if under.hatched:
         radius = _closing_radius(under.hatch)
-        extent = under.copper.buffer(radius).buffer(-radius).intersection(sensor.geometry)
+        extent = robust.intersection(under.copper.buffer(radius).buffer(-radius),
+                                     sensor.geometry)
     else:
         extent = inside
     extent_area = max(float(extent.area), float(inside.area))
@@ -84,7 +85,7 @@ def _copper_under(board: Board, sensor: Sensor, layer: str) -> _Under | None:
     hits = pieces_in(board, layer, region, lambda it: it.net not in own)
     if not hits:
         return None
-    copper = unary_union([p.geometry for p in hits])
+    copper = robust.union([p.geometry for p in hits])
     if copper.is_empty or not copper.intersects(probe):
         return None
     under = [p for p in hits if p.geometry.intersects(probe)]

@@ -22,6 +22,8 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from auditor.model.board import Board
+from auditor.model.vocabulary import SensorKind
+from auditor.sensors.crossed import crossed_kinds
 from auditor.sensors.cues import (
     PROXIMITY_WORDS,
     SLIDER_WORDS,
@@ -33,7 +35,8 @@ from auditor.sensors.cues import (
     tokens,
     trailing_index,
 )
-from auditor.sensors.model import Sensor, SensorKind, name_order
+from auditor.sensors.matrix import matrix_kinds
+from auditor.sensors.model import Sensor, name_order
 from auditor.sensors.pieces import Piece
 from auditor.sensors.segments import grouped_by_layout
 from auditor.sensors.selection import SensorSelection, matches
@@ -55,8 +58,10 @@ def shaped_sensors(board: Board, sel: SensorSelection,
     """Sensors for ``candidates``: unique names, kinds, groups and order, sorted by name."""
     names = _unique_names(board, candidates)
     sensors = [_sensor(board, c, names[i]) for i, c in enumerate(candidates)]
-    sensors = _kinds(board, sel, candidates, sensors)
-    sensors = grouped_by_layout(sensors, set())
+    sensors, fixed = _kinds(board, sel, candidates, sensors)
+    sensors, keys = matrix_kinds(board, sensors)
+    sensors, stacked = crossed_kinds(sensors, fixed | keys, (board.copper_layers or ("",))[0])
+    sensors = grouped_by_layout(sensors, fixed | keys | stacked)
     sensors = _ordered_groups(sensors)
     return tuple(sorted(sensors, key=lambda s: name_order(s.name)))
 
@@ -65,7 +70,7 @@ def _base_name(board: Board, cand: Candidate) -> str:
     piece = cand.piece
     if not is_auto_name(piece.net):
         return leaf(piece.net)
-    refs = sorted({board.footprint(u).ref for u in piece.footprint_uids})
+    refs = sorted({board.footprint(u).ref for u in piece.owner_uids})
     named_zone = next((z.name for z in piece.zones if z.name), "")
     return "+".join(refs) or named_zone or piece.net
 
@@ -99,7 +104,7 @@ def _sensor(board: Board, cand: Candidate, name: str) -> Sensor:
         # A loop's centroid lies in its hole, often on another electrode;
         # findings and markers placed there would point at the wrong copper.
         c = piece.geometry.representative_point()
-    refs = tuple(sorted({board.footprint(u).ref for u in piece.footprint_uids}))
+    refs = tuple(sorted({board.footprint(u).ref for u in piece.owner_uids}))
     front = piece.layer == board.copper_layers[0]
     line, column = _source(piece)
     return Sensor(name=name, kind="button", nets=(piece.net,), refs=refs, layer=piece.layer,
@@ -138,14 +143,28 @@ def _words(board: Board, cand: Candidate) -> str:
 
 
 def _kinds(board: Board, sel: SensorSelection, candidates: Sequence[Candidate],
-           sensors: list[Sensor]) -> list[Sensor]:
+           sensors: list[Sensor]) -> tuple[list[Sensor], set[str]]:
+    """Sensors with kinds and groups, and the names typed by configuration or
+    words (layout grouping leaves those alone)."""
     sides = [_mutual_side(c.piece.net) for c in candidates]
     naming_mutual = "tx" in sides and "rx" in sides
-    out = []
+    out, fixed = [], set()
+    areas = [c.piece.area_mm2 for c in candidates]
     for cand, sensor, side in zip(candidates, sensors, sides, strict=True):
         kind, group = _kind(board, sel, cand, side if naming_mutual else "")
+        if kind == "button" and _looks_proximity(sel, cand.piece) \
+                and _alike_count(cand.piece.area_mm2, areas) < 3:
+            kind = "proximity"
+        elif kind != "button":
+            fixed.add(sensor.name)
         out.append(replace(sensor, kind=kind, group=group))
-    return out
+    return out, fixed
+
+
+def _alike_count(area: float, areas: Sequence[float]) -> int:
+    """How many electrodes (this one included) have about this area: a bank
+    of alike large pads is keys or a slider, not proximity loops."""
+    return sum(1 for a in areas if abs(a - area) <= 0.1 * max(a, area))
 
 
 def _kind(board: Board, sel: SensorSelection, cand: Candidate,
@@ -168,7 +187,7 @@ def _kind(board: Board, sel: SensorSelection, cand: Candidate,
         return "wheel", _group_name(board, cand)
     if has_word(words, SLIDER_WORDS):
         return "slider", _group_name(board, cand)
-    if has_word(words, PROXIMITY_WORDS) or _looks_proximity(sel, cand.piece):
+    if has_word(words, PROXIMITY_WORDS):
         return "proximity", ""
     return "button", ""
 

@@ -20,6 +20,7 @@ from shapely.geometry import MultiPolygon, Polygon
 from shapely.geometry.base import BaseGeometry
 
 from auditor.model.board import Board, CopperItem
+from auditor.sensors import robust
 
 Bounds = tuple[float, float, float, float]
 
@@ -38,26 +39,20 @@ class Piece:
     geometry: BaseGeometry
 
 
-_TILES: dict[tuple[int, str], tuple[Board, tuple[Piece, ...], STRtree]] = {}
-
-
 def tiled(board: Board, layer: str) -> tuple[tuple[Piece, ...], STRtree]:
-    """The layer's copper with big items cut into ``TILE_MM`` tiles, and an index."""
-    key = (id(board), layer)
-    hit = _TILES.get(key)
-    if hit is not None and hit[0] is board:
-        return hit[1], hit[2]
+    """The layer's copper with big items cut into ``TILE_MM`` tiles, and an index
+    (built once per board and layer)."""
+    return board.derived(("sensors.tiled", layer), lambda: _tiled(board, layer))
+
+
+def _tiled(board: Board, layer: str) -> tuple[tuple[Piece, ...], STRtree]:
     pieces: list[Piece] = []
     for item in board.items_on(layer):
         if shapely.get_num_coordinates(item.geometry) <= TILE_VERTICES:
             pieces.append(Piece(item, item.geometry))
             continue
         pieces += [Piece(item, tile) for tile in _tiles_of(item.geometry)]
-    tree = STRtree([p.geometry for p in pieces])
-    if len(_TILES) > 16:
-        _TILES.clear()
-    _TILES[key] = (board, tuple(pieces), tree)
-    return tuple(pieces), tree
+    return tuple(pieces), STRtree([p.geometry for p in pieces])
 
 
 def _tiles_of(geom: BaseGeometry) -> list[BaseGeometry]:
@@ -92,7 +87,7 @@ def pieces_in(board: Board, layer: str, region: BaseGeometry,
         if region.contains(piece.geometry):
             found.append(piece)
             continue
-        cut = piece.geometry.intersection(region)
+        cut = robust.intersection(piece.geometry, region)
         if not cut.is_empty:
             found.append(Piece(piece.item, cut))
     return found
@@ -137,15 +132,13 @@ class Island:
     geometry: Polygon
 
 
-_ISLANDS: dict[int, tuple[Board, tuple[Island, ...]]] = {}
-_AREAS: dict[tuple[int, str], tuple[Board, float]] = {}
-
-
 def zone_islands(board: Board) -> tuple[Island, ...]:
-    """Zone fill pieces with no pad, via, track or graphic of their net on them."""
-    hit = _ISLANDS.get(id(board))
-    if hit is not None and hit[0] is board:
-        return hit[1]
+    """Zone fill pieces with no pad, via, track or graphic of their net on them
+    (found once per board)."""
+    return board.derived("sensors.zone_islands", lambda: _zone_islands(board))
+
+
+def _zone_islands(board: Board) -> tuple[Island, ...]:
     found: list[Island] = []
     for zone in board.zones:
         if zone.is_rule_area or not zone.net:
@@ -154,9 +147,6 @@ def zone_islands(board: Board) -> tuple[Island, ...]:
             for piece in polygons(fill.geometry):
                 if not _connected(board, fill.layer, zone.net, piece):
                     found.append(Island(fill.layer, zone.net, piece))
-    if len(_ISLANDS) > 8:
-        _ISLANDS.clear()
-    _ISLANDS[id(board)] = (board, tuple(found))
     return tuple(found)
 
 
@@ -185,7 +175,7 @@ def _fills_area(board: Board, layer: str, net: str, pieces: tuple[Piece, ...]) -
     left, right = STRtree(geometries).query(geometries, predicate="intersects")
     for a, b in zip(left.tolist(), right.tolist(), strict=True):
         if a < b and mine[a].item is not mine[b].item:
-            total -= float(mine[a].geometry.intersection(mine[b].geometry).area)
+            total -= float(robust.intersection(mine[a].geometry, mine[b].geometry).area)
     return total
 
 
@@ -220,16 +210,13 @@ def net_copper_area(board: Board, net: str) -> float:
     non-zone items (a track end on its pad) are counted twice: a few mm² on
     a ground of thousands, well inside what a pad-to-ground ratio needs.
     """
-    key = (id(board), net)
-    hit = _AREAS.get(key)
-    if hit is not None and hit[0] is board:
-        return hit[1]
+    return board.derived(("sensors.net_copper_area", net), lambda: _net_copper_area(board, net))
+
+
+def _net_copper_area(board: Board, net: str) -> float:
     total = 0.0
     for layer in board.copper_layers:
         pieces, tree = tiled(board, layer)
         total += _fills_area(board, layer, net, pieces)
         total += _outside_fills_area(board, layer, net, pieces, tree)
-    if len(_AREAS) > 32:
-        _AREAS.clear()
-    _AREAS[key] = (board, total)
     return total

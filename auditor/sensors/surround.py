@@ -22,9 +22,9 @@ import shapely
 import shapely.errors
 from shapely import STRtree
 from shapely.geometry.base import BaseGeometry
-from shapely.ops import unary_union
 
 from auditor.model.board import Board
+from auditor.sensors import robust
 from auditor.sensors.floating import floating_copper_near
 from auditor.sensors.model import Sensor, Surroundings
 from auditor.sensors.noisy import is_shield_net
@@ -73,7 +73,7 @@ def copper_near(board: Board, layer: str, region: BaseGeometry,
                 keep: Callable[[str], bool]) -> BaseGeometry:
     """Union of the copper on ``layer`` inside ``region`` of nets ``keep`` accepts."""
     pieces = pieces_in(board, layer, region, lambda it: keep(it.net))
-    return unary_union([p.geometry for p in pieces])
+    return robust.union([p.geometry for p in pieces])
 
 
 def gaps_between(sensor: Sensor, geoms: Sequence[BaseGeometry],
@@ -108,34 +108,20 @@ def ground_fill_ratio(board: Board, sensor: Sensor, others: Sequence[Sensor], gr
     if not ground or ring_mm <= 0:
         return 0.0
     inner = sensor.geometry.buffer(start_mm)
-    ring = sensor.geometry.buffer(start_mm + ring_mm).difference(inner)
+    ring = robust.difference(sensor.geometry.buffer(start_mm + ring_mm), inner)
     outer = start_mm + ring_mm
     same_layer = [o.geometry.buffer(start_mm) for o in others
                   if o.layer == sensor.layer and o.name != sensor.name
                   and o.geometry.distance(sensor.geometry) < outer + start_mm]
     if same_layer:
-        ring = ring.difference(unary_union(same_layer))
+        ring = robust.difference(ring, robust.union(same_layer))
     outline = board.outline.polygon
     if outline is not None and not outline.is_empty:
-        ring = ring.intersection(outline)
+        ring = robust.intersection(ring, outline)
     if ring.area <= 1e-9:
         return 0.0
     copper = copper_near(board, sensor.layer, ring, lambda net: net == ground)
-    return min(1.0, float(robust_intersection(copper, ring).area / ring.area))
-
-
-def robust_intersection(a: BaseGeometry, b: BaseGeometry) -> BaseGeometry:
-    """``a ∩ b``; odd real copper (self-touching hatch, slivers) can make
-    GEOS give up, and then both are repaired first (``make_valid``, and a
-    zero buffer as the last resort)."""
-    try:
-        return a.intersection(b)
-    except shapely.errors.GEOSException:
-        pass
-    try:
-        return shapely.make_valid(a).intersection(shapely.make_valid(b))
-    except shapely.errors.GEOSException:
-        return a.buffer(0).intersection(b.buffer(0))
+    return min(1.0, float(robust.intersection(copper, ring).area / ring.area))
 
 
 def nearest_sensor(sensor: Sensor, others: Sequence[Sensor]) -> tuple[str, float | None]:

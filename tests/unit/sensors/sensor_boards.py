@@ -54,9 +54,9 @@ def resistor(board: Writer, ref: str, at: XY, net_left: str, net_right: str) -> 
 
 
 def round_button(board: Writer, ref: str, at: XY, diameter_mm: float, net: str,
-                 lib_id: str = "Test:Pad_Round") -> None:
+                 lib_id: str = "Test:Pad_Round", value: str = "electrode") -> None:
     """A one-pad footprint with a round SMD pad (mask opened, no paste)."""
-    fp = board.footprint(lib_id, ref, "electrode", at=at)
+    fp = board.footprint(lib_id, ref, value, at=at)
     fp.pad("1", "smd", "circle", (0.0, 0.0), (diameter_mm, diameter_mm), net=net,
            layers=("F.Cu", "F.Mask"))
 

@@ -155,6 +155,7 @@ def test_board_net_classes_without_a_project_file(cue_board: Board) -> None:
     sensors, _ = find_sensors(board, SensorSelection(), netclasses=board.netclasses)
     j5 = next(s for s in sensors if s.name == "J5")
     assert j5.reason == "net class 'TouchKeys'"
-    # Without the project file E2 is found by structure alone.
+    # Without the project file E2 is found by its footprint, whose value says
+    # "electrode" (a footprint word is as strong a cue as a net name).
     e2 = next(s for s in sensors if s.name == "E2")
-    assert e2.reason == "50 mm² of pad on a net that goes straight to U1 pin 2"
+    assert e2.reason == "footprint E2 is 'Test:Pad_Round'"

@@ -10,7 +10,7 @@ from auditor.sensors.shaping import _mutual_side
 
 @pytest.mark.parametrize(("name", "word", "strong"), [
     ("TOUCH1", "touch", True), ("/ui/Slider_3", "slider", True), ("Net-(U1-TOUCH3)", "touch", True),
-    ("CAPSENSE0", "sense", True), ("BTN2", "btn", False), ("KEY_5", "key", False),
+    ("CSENSE0", "sense", True), ("BTN2", "btn", False), ("KEY_5", "key", False),
     ("TP4", "tp", False), ("PROX", "prox", True),
 ])
 def test_cue_words(name: str, word: str, strong: bool) -> None:
