@@ -18,7 +18,7 @@ from collections.abc import Iterator, Sequence
 from dataclasses import dataclass
 from pathlib import Path, PurePosixPath
 
-from auditor.errors import UsageError
+from auditor.errors import LocatedError, UsageError
 
 #: Files beside or above a board that change how it is audited.
 CONFIG_NAMES: tuple[str, ...] = ("padaudit.toml", "pyproject.toml")
@@ -72,8 +72,11 @@ class RepoPath:
 def locate(file: str | Path) -> RepoPath:
     """The repository holding ``file`` and the file's path inside it."""
     absolute = Path(file).resolve()
+    folder = absolute.parent
+    while not folder.is_dir():  # the file's folder was renamed or removed since
+        folder = folder.parent
     try:
-        top = run_git(["rev-parse", "--show-toplevel"], absolute.parent).decode().strip()
+        top = run_git(["rev-parse", "--show-toplevel"], folder).decode().strip()
     except UsageError as exc:
         raise UsageError(f"{file}: {exc}") from None
     root = Path(top).resolve()
@@ -121,7 +124,26 @@ def board_at(file: str | Path, rev: str) -> Iterator[Path]:
             data = blob(where.root, rev, extra)
             if data is not None:
                 _write(mirror, extra, data)
-        yield _write(mirror, where.path, content)
+        try:
+            yield _write(mirror, where.path, content)
+        except LocatedError as exc:
+            raise relabelled(exc, mirror, rev) from None
+
+
+def label(rev: str, path: PurePosixPath) -> str:
+    """How people name a file at a revision: ``REV:path`` or ``path (staged)``."""
+    return f"{rev}:{path}" if rev else f"{path} (staged)"
+
+
+def relabelled(exc: LocatedError, mirror: Path, rev: str) -> LocatedError:
+    """``exc`` naming ``REV:path`` instead of the file's temporary copy."""
+    try:
+        inside = Path(exc.path).resolve().relative_to(mirror.resolve())
+    except ValueError:
+        return exc
+    copy = type(exc)(label(rev, PurePosixPath(inside.as_posix())), exc.message, exc.line,
+                     exc.column)
+    return copy
 
 
 def mirror_root(copy: Path) -> Path:

@@ -1,20 +1,31 @@
 """Benchmark of the precise (planar moment-method) field solve.
 
-Prints, in one run: the 30 x 30 mm window at 0.25 mm cells with three
-conductors (time, peak traced memory), a 16-electrode coupling matrix, and the
-FFT + CG solve against a dense direct solve of the same discretisation on
-growing cases (time ratio and crossover). Goals from issue 7: <= 1.5 s and
-<= 150 MB, <= 30 s on two cores. Run: ``python bench/bench_precise.py``.
+Prints, in one run: the demo board's whole ``audit --precise`` in a fresh
+process (wall, CPU of all threads, peak RSS; goal from issue 13: <= 8 s wall
+on two cores, <= 200 MB), optionally alternated with another checkout
+(``--against DIR``, e.g. a ``git worktree`` of an older commit) for a CPU
+ratio measured in the same run and the largest change of Cp and ΔC per
+electrode; then the 30 x 30 mm window at 0.25 mm cells with three conductors
+(time, peak traced memory), a 16-electrode coupling matrix, and the FFT + CG
+solve against a dense direct solve of the same discretisation on growing
+cases (time ratio and crossover). Goals from issue 7: <= 1.5 s and <= 150 MB,
+<= 30 s on two cores. Run: ``python bench/bench_precise.py --help``.
 """
 
 from __future__ import annotations
 
+import argparse
+import json
 import os
 import resource
+import subprocess
+import sys
+import tempfile
 import time
 import tracemalloc
 from collections.abc import Callable
 from functools import partial
+from pathlib import Path
 from typing import TypeVar
 
 import numpy as np
@@ -29,6 +40,76 @@ T = TypeVar("T")
 
 # Overlay 2 mm (er 3) over 1.6 mm FR-4 (er 4.4) over a solid plane (folded in).
 TOUCH_STACK = LayeredMedium(((2.0, 3.0), (1.6, 4.4)), ground_below=True)
+
+
+DEMO_BOARD = Path(__file__).resolve().parents[1] / "auditor" / "demo" / "front_panel.kicad_pcb"
+#: Issue 13 item 6: the demo's ``audit --precise`` within 8 s wall and 200 MB.
+DEMO_WALL_GOAL_S = 8.0
+DEMO_RSS_GOAL_MB = 200.0
+
+
+def run_demo_audit(tree: Path, output: Path) -> tuple[float, float, float]:
+    """``python -m auditor audit DEMO --precise`` with ``tree`` first on the path.
+
+    Returns wall seconds, CPU seconds (user + system, every thread) and peak
+    RSS in MB of that one process, from ``os.wait4``.
+    """
+    env = dict(os.environ, PYTHONPATH=str(tree))
+    command = [sys.executable, "-m", "auditor", "audit", str(DEMO_BOARD), "--precise",
+               "--format", "json", "--quiet", "--output", str(output)]
+    start = time.perf_counter()
+    child = subprocess.Popen(command, env=env, cwd=tree, stdout=subprocess.DEVNULL)
+    _, status, usage = os.wait4(child.pid, 0)
+    wall = time.perf_counter() - start
+    child.returncode = os.waitstatus_to_exitcode(status)
+    if child.returncode not in (0, 1):
+        raise SystemExit(f"demo audit under {tree} exited with {child.returncode}")
+    return wall, usage.ru_utime + usage.ru_stime, usage.ru_maxrss / 1024.0
+
+
+def electrode_values(path: Path) -> dict[str, tuple[float, float]]:
+    """Cp of the pad and ΔC per electrode from an audit's JSON."""
+    doc = json.loads(path.read_text(encoding="utf-8"))
+    return {s["name"]: (s["metrics"]["cp_pad_pf"], s["metrics"]["delta_c_pf"])
+            for s in doc["sensors"] if s.get("metrics")}
+
+
+def demo_audit(repeat: int, against: Path | None) -> None:
+    """Time the demo's precise audit; with ``against``, alternate with that checkout."""
+    here = Path(__file__).resolve().parents[1]
+    trees = [("this tree", here)] + ([("against", against)] if against else [])
+    runs: dict[str, list[tuple[float, float, float]]] = {name: [] for name, _ in trees}
+    with tempfile.TemporaryDirectory() as folder:
+        outputs = {name: Path(folder) / f"{n}.json" for n, (name, _) in enumerate(trees)}
+        for _ in range(repeat):
+            for name, tree in trees:
+                runs[name].append(run_demo_audit(tree, outputs[name]))
+        print(f"demo audit --precise ({DEMO_BOARD.name}), best of {repeat}:")
+        for name, _ in trees:
+            wall, cpu, rss = (min(r[i] for r in runs[name]) for i in range(3))
+            print(f"  {name:9s} wall {wall:6.2f} s (goal {DEMO_WALL_GOAL_S:g} s, ratio "
+                  f"{wall / DEMO_WALL_GOAL_S:.2f}), CPU {cpu:6.2f} s, peak RSS {rss:5.0f} MB "
+                  f"(goal {DEMO_RSS_GOAL_MB:g} MB, ratio {rss / DEMO_RSS_GOAL_MB:.2f})")
+        if against is None:
+            return
+        new, old = (min(r[1] for r in runs[name]) for name, _ in trees)
+        print(f"  CPU ratio this/against {new / old:.3f}; wall ratio "
+              f"{min(r[0] for r in runs['this tree']) / min(r[0] for r in runs['against']):.3f}")
+        _print_changes(electrode_values(outputs["this tree"]), electrode_values(outputs["against"]))
+
+
+def _print_changes(new: dict[str, tuple[float, float]], old: dict[str, tuple[float, float]]
+                   ) -> None:
+    worst_cp, worst_delta = ("", 0.0), ("", 0.0)
+    for name in sorted(set(new) & set(old)):
+        cp = new[name][0] / old[name][0] - 1.0
+        delta = new[name][1] / old[name][1] - 1.0
+        print(f"    {name:10s} Cp {new[name][0]:8.4f} pF ({cp:+.3%})  "
+              f"ΔC {new[name][1]:7.4f} pF ({delta:+.3%})")
+        worst_cp = max(worst_cp, (name, cp), key=lambda item: abs(item[1]))
+        worst_delta = max(worst_delta, (name, delta), key=lambda item: abs(item[1]))
+    print(f"  largest change vs against: Cp {worst_cp[1]:+.3%} ({worst_cp[0]}), "
+          f"ΔC {worst_delta[1]:+.3%} ({worst_delta[0]})")
 
 
 def window_case() -> None:
@@ -133,9 +214,23 @@ def _pf_per_unit() -> float:
     return float(_PF_PER_KERNEL_UNIT)
 
 
-if __name__ == "__main__":
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--repeat", type=int, default=1,
+                        help="demo audits per checkout (best is shown), default 1")
+    parser.add_argument("--against", type=Path,
+                        help="another checkout to time the demo audit against, alternately")
+    parser.add_argument("--demo-only", action="store_true", help="only the demo audit")
+    args = parser.parse_args()
     print(f"load average before the run: {os.getloadavg()[0]:.2f} on {os.cpu_count()} CPUs "
-          "(other work on the machine inflates wall times)")
+          "(other work on the machine inflates wall times; CPU times are steadier)")
+    demo_audit(args.repeat, args.against)
+    if args.demo_only:
+        return
     window_case()
     sixteen_electrodes()
     dense_against_fft()
+
+
+if __name__ == "__main__":
+    main()

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import argparse
 import contextlib
+import io
 import os
 import sys
 from collections.abc import Iterator
@@ -19,6 +20,12 @@ from auditor.cli.audit_runner import AuditFn, auditor_for, shown_as
 from auditor.cli.colour import COLOUR_CHOICES, use_colour
 from auditor.cli.confirm import confirm_written
 from auditor.cli.options import add_fail_on, add_profile
+from auditor.cli.outputs import (
+    refuse_inputs,
+    require_value,
+    write_output,
+    written_to_stdout,
+)
 from auditor.decide.diff import compare_reports
 from auditor.decide.records import Report
 from auditor.decide.summary import summarize_diff
@@ -84,21 +91,25 @@ def _audited(audit: AuditFn, spec: str) -> Report:
 
 def run(args: argparse.Namespace) -> int:
     """Run ``padaudit diff``."""
+    for name, side in (("OLD", args.old), ("NEW", args.new)):
+        require_value(name, side)
+    require_value("--output", args.output)
+    boards = [args.old, args.new] + [side.partition(":")[2] for side in (args.old, args.new)]
+    if args.output:  # refused before two audits, not after
+        refuse_inputs("--output", args.output, boards)
     audit = auditor_for(args)
     diff = compare_reports(_audited(audit, args.old), _audited(audit, args.new),
                            args.max_ratio_loss)
     summary = summarize_diff(diff)
     if args.output:
-        try:
-            with open(args.output, "w", encoding="utf-8") as stream:
-                render_diff(diff, args.format, stream)
-        except OSError as exc:
-            raise UsageError(f"{args.output}: cannot write: {exc.strerror or exc}") from None
+        buffer = io.StringIO()
+        render_diff(diff, args.format, buffer)
+        write_output("--output", args.output, buffer.getvalue(), boards)
         confirm_written(args.output)
-        render_summary(summary, sys.stdout)
+        written_to_stdout(lambda: render_summary(summary, sys.stdout))
     else:
         colour = use_colour(args.color, sys.stdout, os.environ) and args.format == "text"
-        render_diff(diff, args.format, sys.stdout, colour)
+        written_to_stdout(lambda: render_diff(diff, args.format, sys.stdout, colour))
         if args.format != "text":  # stdout holds the document: the verdict goes aside
             render_summary(summary, sys.stderr)
     return summary.exit_code

@@ -16,23 +16,31 @@ board; a fail, the findings that fail it (``--full`` for the whole report).
 from __future__ import annotations
 
 import argparse
+import functools
 import os
 import shlex
 import stat
 import sys
-from pathlib import Path
+from collections.abc import Callable
+from pathlib import Path, PurePosixPath
 
 from auditor.cli.audit_runner import AuditFn, auditor_for, shown_as
 from auditor.cli.colour import use_colour
 from auditor.cli.options import add_fail_on, add_profile
+from auditor.cli.outputs import replace_text, written_to_stdout
 from auditor.decide.records import Report
-from auditor.errors import UsageError
+from auditor.errors import PadauditError, UsageError
 from auditor.gitrev import blob, board_at, repo_root, run_git, staged_boards
 from auditor.report.brief import render_brief
 from auditor.report.render import render
 
+#: Exit code of a board that could not be audited (as main's bad input).
+EXIT_BAD_INPUT = 2
+
 #: Marks a hook file as ours, so ``install`` may replace it without --force.
 HOOK_MARKER = "# padaudit-managed-hook"
+#: The name a replaced foreign hook is kept under, beside the new one.
+BACKUP_NAME = "pre-commit.padaudit-backup"
 
 
 def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
@@ -99,16 +107,29 @@ def hooks_dir(cwd: Path) -> Path:
     return path if path.is_absolute() else cwd / path
 
 
+def _foreign(target: Path) -> bool:
+    """Whether a hook exists that padaudit did not write (a symlink always
+    counts as foreign: its target may be a tracked script)."""
+    if target.is_symlink():
+        return True
+    return target.exists() and HOOK_MARKER not in target.read_text(errors="replace")
+
+
 def install(cwd: Path, force: bool, fail_on: str | None = None, baseline: str | None = None,
             new_since: str | None = None) -> Path:
-    """Write the hook; refuse to replace a foreign one unless ``force``."""
+    """Write the hook; refuse to replace a foreign one unless ``force``, and
+    then keep it as ``pre-commit.padaudit-backup`` (a symlink is moved
+    itself; what it points at is never written)."""
     target = hooks_dir(cwd) / "pre-commit"
-    if target.exists() and not force and HOOK_MARKER not in target.read_text(errors="replace"):
+    foreign = _foreign(target)
+    if foreign and not force:
         raise UsageError(f"{target}: a pre-commit hook not written by padaudit exists; "
-                         "use --force to replace it")
+                         "use --force to replace it (it is kept as "
+                         f"{BACKUP_NAME})")
     target.parent.mkdir(parents=True, exist_ok=True)
-    target.write_text(hook_script(sys.executable, fail_on, baseline, new_since),
-                      encoding="utf-8")
+    if foreign:
+        os.replace(target, target.with_name(BACKUP_NAME))
+    replace_text(target, hook_script(sys.executable, fail_on, baseline, new_since))
     target.chmod(target.stat().st_mode | stat.S_IXUSR | stat.S_IXGRP | stat.S_IXOTH)
     return target
 
@@ -173,14 +194,28 @@ def _audit_staged(args: argparse.Namespace, cwd: Path) -> list[tuple[str, int]]:
     if not boards:
         return []
     audit = auditor_for(args)
-    results = []
-    for path in boards:
+
+    def staged(path: PurePosixPath) -> int:
         board = root / Path(*path.parts)
         with board_at(board, "") as copy:
             report = shown_as(audit(str(copy)), f"{path} (staged)", copy, "{} (staged)")
-            report = _gated(report, args, audit, board, copy)
-        results.append((str(path), _show(report, args.full)))
-    return results
+            return _show(_gated(report, args, audit, board, copy), args.full)
+
+    return [_guarded(str(path), functools.partial(staged, path)) for path in boards]
+
+
+def _guarded(name: str, check: Callable[[], int]) -> tuple[str, int]:
+    """``(name, exit code)`` of one board; bad input is reported in one line
+    and the other boards are still audited."""
+    try:
+        return name, check()
+    except PadauditError as exc:
+        sys.stderr.write(f"padaudit: {exc}\n")
+        return name, EXIT_BAD_INPUT
+
+
+def _audit_file(audit: AuditFn, path: str, args: argparse.Namespace) -> int:
+    return _show(_gated(audit(path), args, audit, Path(path)), args.full)
 
 
 def _show(report: Report, full: bool) -> int:
@@ -188,10 +223,10 @@ def _show(report: Report, full: bool) -> int:
 
     summary = summarize(report)
     if full:
-        render(report, "text", sys.stdout, use_colour("auto", sys.stdout, os.environ),
-               closing=False)
-        sys.stdout.write("\n")
-    render_brief(report, summary, sys.stdout)
+        colour = use_colour("auto", sys.stdout, os.environ)
+        written_to_stdout(lambda: render(report, "text", sys.stdout, colour, closing=False))
+        written_to_stdout(lambda: sys.stdout.write("\n"))
+    written_to_stdout(lambda: render_brief(report, summary, sys.stdout))
     return summary.exit_code
 
 
@@ -204,7 +239,7 @@ def run(args: argparse.Namespace) -> int:
         return 0
     if args.files:
         audit = auditor_for(args)
-        results = [(f, _show(_gated(audit(f), args, audit, Path(f)), args.full))
+        results = [_guarded(f, functools.partial(_audit_file, audit, f, args))
                    for f in args.files]
     else:
         results = _audit_staged(args, cwd)

@@ -10,7 +10,10 @@ Exit codes (the contract CI and git hooks rely on):
 * 0 — clean (nothing at or above ``--fail-on``),
 * 1 — findings at or above ``--fail-on``,
 * 2 — bad input or usage (one line on stderr, no traceback),
-* 3 — internal error.
+* 3 — internal error,
+* 130 / 143 — interrupted (Ctrl-C) / terminated (SIGTERM); temporary files
+  are removed first. A closed standard output (``padaudit ... | head``)
+  does not change the code: the gate decides, not whether the report was read.
 """
 
 from __future__ import annotations
@@ -24,6 +27,7 @@ from types import ModuleType
 from typing import NoReturn
 
 from auditor import __version__
+from auditor.cli.signals import EXIT_INTERRUPTED, EXIT_TERMINATED, Terminated, terminate_gracefully
 from auditor.errors import PadauditError
 
 EXIT_CLEAN = 0
@@ -118,14 +122,18 @@ def main(argv: Sequence[str] | None = None) -> int:
     modules = _load_commands(chosen)
     args = build_parser(modules).parse_args(words)
     try:
-        code: int = modules[args.command].run(args)
+        with terminate_gracefully():
+            code: int = modules[args.command].run(args)
         return code
     except PadauditError as exc:
         sys.stderr.write(f"padaudit: {exc}\n")
         return EXIT_BAD_INPUT
     except KeyboardInterrupt:
         sys.stderr.write("padaudit: interrupted\n")
-        return EXIT_INTERNAL
+        return EXIT_INTERRUPTED
+    except Terminated:
+        sys.stderr.write("padaudit: terminated\n")
+        return EXIT_TERMINATED
     except BrokenPipeError:
         # The reader went away (``padaudit ... | head``); nothing more to say.
         os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())

@@ -18,9 +18,14 @@ from typing import TYPE_CHECKING, TextIO
 from auditor.cli.audit_runner import AuditFn, auditor_for, shown_as
 from auditor.cli.colour import COLOUR_CHOICES, use_colour
 from auditor.cli.confirm import confirm_written
+from auditor.cli.outputs import (
+    require_value,
+    stdout_may_close,
+    write_output,
+    written_to_stdout,
+)
 from auditor.decide.records import Report
 from auditor.decide.summary import summarize
-from auditor.errors import UsageError
 from auditor.report.render import FORMATS, render
 from auditor.report.summary_line import render_summary
 from auditor.report.text import ORDERS
@@ -59,33 +64,35 @@ def add_report_options(parser: argparse.ArgumentParser) -> None:
                            "loses more than the profile's max_ratio_loss of its ratio")
 
 
-def _write_file(path: str, text: str) -> None:
-    try:
-        Path(path).write_text(text, encoding="utf-8")
-    except OSError as exc:
-        raise UsageError(f"{path}: cannot write: {exc.strerror or exc}") from None
+def _inputs(report: Report, args: argparse.Namespace) -> tuple[str, ...]:
+    """The boards this run read: no output may land on one of them."""
+    return tuple(p for p in (getattr(args, "board", None), report.info.board_path) if p)
 
 
-def _write_baseline(report: Report, path: str, quiet: bool) -> None:
+def _check_values(args: argparse.Namespace) -> None:
+    for option in ("output", "svg", "baseline", "write_baseline", "against"):
+        require_value("--" + option.replace("_", "-"), getattr(args, option, None))
+
+
+def _write_baseline(report: Report, args: argparse.Namespace, quiet: bool) -> None:
     """Record the report's findings (the audit accepted them all already)."""
     # Imported here, as the picture and the diff below: most runs use none
     # of them, and every import costs start-up time.
     from auditor.decide.baseline import Baseline, dumps
 
     baseline = Baseline.of(report.findings)
-    _write_file(path, dumps(baseline))
+    write_output("--write-baseline", args.write_baseline, dumps(baseline),
+                 _inputs(report, args))
     entries = len(baseline.counts)
-    confirm_written(path, f"{entries} entr{'y' if entries == 1 else 'ies'}", quiet=quiet)
+    confirm_written(args.write_baseline, f"{entries} entr{'y' if entries == 1 else 'ies'}",
+                    quiet=quiet)
 
 
-def _write_svg(report: Report, path: str, quiet: bool) -> None:
-    from auditor.report.svg import write_svg
+def _write_svg(report: Report, args: argparse.Namespace, quiet: bool) -> None:
+    from auditor.report.svg import to_svg
 
-    try:
-        write_svg(_with_board(report), path)
-    except OSError as exc:
-        raise UsageError(f"{path}: cannot write: {exc.strerror}") from None
-    confirm_written(path, quiet=quiet)
+    write_output("--svg", args.svg, to_svg(_with_board(report)), _inputs(report, args))
+    confirm_written(args.svg, quiet=quiet)
 
 
 def _with_board(report: Report) -> Report:
@@ -114,15 +121,16 @@ def _write_outputs(report: Report, args: argparse.Namespace) -> None:
     """The files asked for: baseline, picture, report; each confirmed on stderr."""
     quiet = bool(getattr(args, "quiet", False))
     if getattr(args, "write_baseline", None):
-        _write_baseline(report, args.write_baseline, quiet)
+        _write_baseline(report, args, quiet)
     if getattr(args, "svg", None):
-        _write_svg(report, args.svg, quiet)
+        _write_svg(report, args, quiet)
     if getattr(args, "output", None):
         import io
 
         buffer = io.StringIO()
-        render(report, getattr(args, "format", "text"), buffer, False, order=getattr(args, "order", "weakest"))
-        _write_file(args.output, buffer.getvalue())
+        render(report, getattr(args, "format", "text"), buffer, False,
+               order=getattr(args, "order", "weakest"))
+        write_output("--output", args.output, buffer.getvalue(), _inputs(report, args))
         confirm_written(args.output, quiet=quiet)
 
 
@@ -155,6 +163,7 @@ def emit(report: Report, args: argparse.Namespace, *, audit: AuditFn | None = No
     environment = os.environ if env is None else env
     fmt = getattr(args, "format", "text")
     colour = use_colour(getattr(args, "color", "auto"), out, environment)
+    _check_values(args)
     against = getattr(args, "against", None)
     if against:
         from auditor.gitrev import check_board_at
@@ -164,21 +173,24 @@ def emit(report: Report, args: argparse.Namespace, *, audit: AuditFn | None = No
     on_stdout = not getattr(args, "output", None)
     text_here = on_stdout and fmt == "text"
     if on_stdout:
-        render(report, fmt, out, colour and text_here,
-               order=getattr(args, "order", "weakest"), closing=False)
+        written_to_stdout(lambda: render(report, fmt, out, colour and text_here,
+                                         order=getattr(args, "order", "weakest"),
+                                         closing=False))
     diff = _against(report, args, audit) if against else None
     aside = out if fmt == "text" else sys.stderr
     if diff is not None:
         from auditor.report.diff_render import render_diff
 
-        aside.write("\n")
-        render_diff(diff, "text", aside, colour and aside is out, closing=False)
+        with stdout_may_close():
+            aside.write("\n")
+            render_diff(diff, "text", aside, colour and aside is out, closing=False)
     summary = dataclasses.replace(summarize(report, diff), demo=demo)
-    if text_here:
-        out.write("\n")
-        render_summary(summary, out, colour)
-    elif not getattr(args, "quiet", False):
-        render_summary(summary, out if not on_stdout else sys.stderr)
+    with stdout_may_close():
+        if text_here:
+            out.write("\n")
+            render_summary(summary, out, colour)
+        elif not getattr(args, "quiet", False):
+            render_summary(summary, out if not on_stdout else sys.stderr)
     return summary.exit_code
 
 

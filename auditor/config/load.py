@@ -154,6 +154,8 @@ def _thresholds(value: Any, where: ConfigText) -> dict[str, Any]:
                             + ", ".join(known), key)
         if not isinstance(item, bool | int | float) or not math.isfinite(item):
             raise sub.error(f"threshold {key!r} must be a finite number or true/false", key)
+        if profiles.range_problem(key, item):
+            raise sub.error(profiles.range_problem(key, item), key)
     return dict(sorted(value.items()))
 
 

@@ -37,7 +37,23 @@ MEASUREMENT_THRESHOLDS: Mapping[str, str] = {
                         "are listed",
     "max_ratio_loss": "largest loss of a pad's dC/Cp between two revisions, as a fraction "
                       "(padaudit diff, audit --against)",
+    "pin_pf": "the controller pin's own capacitance in pF, added to every "
+              "self-capacitance electrode's Cp total",
 }
+
+#: Thresholds with a physical range: (lowest, highest) accepted value.
+#: ``pin_pf``: a pin of more than 50 pF is a typing error, not a pin.
+THRESHOLD_RANGES: Mapping[str, tuple[float, float]] = {"pin_pf": (0.0, 50.0)}
+
+
+def range_problem(key: str, value: ThresholdValue) -> str:
+    """Why ``value`` is outside ``key``'s range (``""`` when it is fine)."""
+    if key not in THRESHOLD_RANGES:
+        return ""
+    low, high = THRESHOLD_RANGES[key]
+    if isinstance(value, bool) or not low <= value <= high:
+        return f"threshold {key!r} must be a number from {low:g} to {high:g} (got {value!r})"
+    return ""
 
 LEVELS = ("error", "warning", "info", "off")
 
@@ -169,6 +185,8 @@ def _thresholds(raw: Any, text: str, path: Path) -> dict[str, ThresholdValue]:
         if not isinstance(value, (bool, int, float)) or not math.isfinite(value):
             raise ConfigError(path, f"threshold {key!r} must be a finite number or "
                                     "true/false", line)
+        if range_problem(key, value):
+            raise ConfigError(path, range_problem(key, value), line)
         out[key] = value
     return out
 

@@ -75,6 +75,26 @@ def _entry(raw: object, path: Path) -> tuple[FindingKey, int]:
     return key, count
 
 
+def _document(file: Path) -> object:
+    """The file's JSON; whatever is wrong with it is a :class:`ConfigError`."""
+    try:
+        text = file.read_bytes().decode("utf-8")
+        return json.loads(text)
+    except OSError as exc:
+        raise ConfigError(file, f"cannot read baseline: {exc.strerror or exc}") from None
+    except UnicodeDecodeError as exc:
+        raise ConfigError(file, f"baseline is not UTF-8 text (byte {exc.start} is "
+                                f"0x{exc.object[exc.start]:02x})") from None
+    except json.JSONDecodeError as exc:
+        raise ConfigError(file, f"baseline is not JSON: {exc.msg}", exc.lineno, exc.colno) from None
+    except RecursionError:
+        raise ConfigError(file, "baseline is nested too deeply to be a padaudit baseline") \
+            from None
+    except ValueError:  # an integer of thousands of digits
+        raise ConfigError(file, "baseline holds a number with too many digits (a count is "
+                                "a small positive integer)") from None
+
+
 def load_baseline(path: str | Path) -> Baseline:
     """Read a baseline file.
 
@@ -85,12 +105,7 @@ def load_baseline(path: str | Path) -> Baseline:
         the line and column of a JSON syntax error.
     """
     file = Path(path)
-    try:
-        doc = json.loads(file.read_text(encoding="utf-8"))
-    except OSError as exc:
-        raise ConfigError(file, f"cannot read baseline: {exc.strerror or exc}") from None
-    except json.JSONDecodeError as exc:
-        raise ConfigError(file, f"baseline is not JSON: {exc.msg}", exc.lineno, exc.colno) from None
+    doc = _document(file)
     if not isinstance(doc, dict) or doc.get("padaudit_baseline") != BASELINE_FORMAT:
         raise ConfigError(file, f"not a padaudit baseline (format {BASELINE_FORMAT} expected)")
     entries = doc.get("entries")
@@ -103,6 +118,14 @@ def load_baseline(path: str | Path) -> Baseline:
     return Baseline(tuple(sorted(counter.items())))
 
 
+def _known_rule_ids(report: Report) -> frozenset[str]:
+    """Every rule id padaudit has (registry), and those the report names."""
+    from auditor.rules.registry import all_rules
+
+    return frozenset(r.rule_id for r in all_rules()) | {r.rule_id for r in report.rules} \
+        | {d.finding.rule_id for d in report.findings}
+
+
 def apply_baseline(report: Report, baseline: Baseline) -> Report:
     """Mark findings the baseline accepts; list what it holds that was not found.
 
@@ -112,7 +135,10 @@ def apply_baseline(report: Report, baseline: Baseline) -> Report:
     """
     marked, stale_keys = mark_baseline(report.findings, dict(baseline.counts))
     left = baseline_leftovers(marked, dict(baseline.counts))
+    known = _known_rule_ids(report)
     stale = tuple(describe(k) + (f" (x{left[k]} not found)" if left[k] > 1 else "")
+                  + ("" if k[0] in known else f" (unknown rule id '{k[0]}': a typo, or a "
+                     "rule padaudit no longer has)")
                   for k in stale_keys)
     return dataclasses.replace(report, findings=marked,
                                stale_baseline=report.stale_baseline + stale)

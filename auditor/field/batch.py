@@ -23,6 +23,7 @@ from __future__ import annotations
 import multiprocessing
 import os
 import queue
+import signal
 import sys
 from collections.abc import Callable, Sequence
 from multiprocessing.process import BaseProcess
@@ -81,7 +82,13 @@ def _process_count(requested: int | None) -> int:
 
 
 def _helper(tasks: Any, results: Any) -> None:
-    """A helper's loop: solve queued setups until the stop mark (None)."""
+    """A helper's loop: solve queued setups until the stop mark (None).
+
+    Ctrl-C reaches every process of the terminal's group: helpers ignore it
+    (the parent stops them, and they print nothing), and SIGTERM ends them
+    at once whatever handler the parent had when it forked them."""
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    signal.signal(signal.SIGTERM, signal.SIG_DFL)
     while True:
         item = tasks.get()
         if item is None:
@@ -157,13 +164,25 @@ class PadBatch:
         setup as its solve is done (in completion order, which varies
         between runs when helpers take part)."""
         if self._helpers:
-            self._share_the_rest(on_solved)
+            try:
+                self._share_the_rest(on_solved)
+            except BaseException:  # interrupted: stop the helpers, then go on unwinding
+                self.stop()
+                raise
         for index, setup in enumerate(self._order):
             if index not in self._solved:
                 self._solved[index] = solve_pad(setup)
                 if on_solved is not None:
                     on_solved(setup)
         return {setup: self._solved[i] for i, setup in enumerate(self._order)}
+
+    def stop(self) -> None:
+        """End the helper processes now (their queued work is dropped)."""
+        for helper in self._helpers:
+            helper.terminate()
+        for helper in self._helpers:
+            helper.join(timeout=1.0)
+        self._helpers = []
 
     def _share_the_rest(self, on_solved: Callable[[PadSetup], None] | None) -> None:
         """Solve what is still queued here while the helpers do theirs; then

@@ -19,7 +19,7 @@ from shapely.geometry import Point, box
 from auditor.field.api import PadSetup, PadSolve
 from auditor.field.matrix import CapacitanceMatrix
 from auditor.field.pad_model import check_setup, ground_outer_mm, reduced_network
-from auditor.field.precise import Conductor, LayeredMedium, solve_capacitance
+from auditor.field.precise import Conductor, LayeredMedium, solve_capacitance, solve_variants
 from auditor.field.traces import traces_pf
 
 #: Thickness of the thin air layer put under the finger when nothing else
@@ -51,14 +51,17 @@ def merged_ground(matrix: CapacitanceMatrix, prefix: str = GROUND + "@") -> Capa
 
 
 def solve_pair(conductors: list[Conductor], medium: LayeredMedium, finger: Conductor | None,
-                cell_mm: float) -> tuple[CapacitanceMatrix, CapacitanceMatrix | None]:
+               cell_mm: float) -> tuple[CapacitanceMatrix, CapacitanceMatrix | None]:
     """Baseline and (with a finger) touched matrices, ground pieces merged."""
     window = shapely.union_all([c.geometry for c in conductors]).envelope
-    baseline = merged_ground(solve_capacitance(conductors, medium, cell_mm, window=window))
     if finger is None:
-        return baseline, None
-    touched = solve_capacitance([*conductors, finger], medium, cell_mm, window=window)
-    return baseline, merged_ground(touched)
+        return merged_ground(solve_capacitance(conductors, medium, cell_mm, window=window)), None
+    # One batched solve: same mesh and operator with and without the finger,
+    # the ground's pieces on each layer tied into one node (one right-hand side).
+    tied = {c.name: GROUND for c in conductors if c.name.startswith(GROUND + "@")}
+    baseline, touched = solve_variants(conductors, [(), (finger,)], medium, cell_mm,
+                                       window=window, tied=tied)
+    return baseline.matrix, touched.matrix
 
 
 def estimate_precise(setup: PadSetup, cell_mm: float = 0.25) -> PadSolve:

@@ -53,22 +53,27 @@ class TrackGraph:
         self.vias = tuple(vias)
         self._index: dict[NodeKey, int] = {}
         self._points: list[tuple[str, float, float]] = []
+        #: Edges of the graph once built (pairs of nodes joined).
+        self.edge_count = 0
 
     @cached_property
     def _matrix(self) -> csr_matrix:
         """The graph, built on the first path query (totals do not need it)."""
-        rows: list[int] = []
-        cols: list[int] = []
-        weights: list[float] = []
+        # One entry per pair of nodes, the shortest: copies of a track are
+        # one way, not a path as long as all of them (a sparse matrix would
+        # add duplicate entries up), and a board of duplicated items keeps
+        # as many edges as distinct ones.
+        shortest: dict[tuple[int, int], float] = {}
 
         def edge(a: int, b: int, w: float) -> None:
-            rows.append(a)
-            cols.append(b)
-            weights.append(max(w, 1e-12))  # csgraph drops explicit zeros
+            if a != b:
+                key = (a, b) if a < b else (b, a)
+                weight = max(w, 1e-12)  # csgraph drops explicit zeros
+                shortest[key] = min(weight, shortest.get(key, weight))
 
-        for tr in self.tracks:
+        for tr in self._distinct_tracks:
             edge(self._node(tr.layer, tr.start), self._node(tr.layer, tr.end), tr.length_mm)
-        for via in self.vias:
+        for via in self._distinct_vias:
             ids = [self._node(layer, Point(via.x_mm, via.y_mm)) for layer in via.layers]
             for a, b in zip(ids, ids[1:], strict=False):
                 edge(a, b, 0.0)
@@ -76,7 +81,22 @@ class TrackGraph:
         self._join_via_pads(edge, by_layer)
         self._join_t_junctions(edge, by_layer)
         n = len(self._points)
-        return coo_matrix((weights, (rows, cols)), shape=(n, n)).tocsr()
+        self.edge_count = len(shortest)
+        pairs = np.asarray(list(shortest), dtype=int).reshape(-1, 2)
+        weights = np.asarray(list(shortest.values()), dtype=float)
+        return coo_matrix((weights, (pairs[:, 0], pairs[:, 1])), shape=(n, n)).tocsr()
+
+    @cached_property
+    def _distinct_tracks(self) -> tuple[Track, ...]:
+        """The tracks less exact copies (same layer, ends, middle, width)."""
+        seen: dict[tuple[object, ...], Track] = {}
+        for tr in self.tracks:
+            seen.setdefault((tr.layer, tr.start, tr.end, tr.mid, tr.width_mm), tr)
+        return tuple(seen.values())
+
+    @cached_property
+    def _distinct_vias(self) -> tuple[Via, ...]:
+        return tuple(dict.fromkeys(self.vias))
 
     def _node(self, layer: str, p: Point) -> int:
         key = _key(layer, p.x, p.y)
@@ -102,7 +122,7 @@ class TrackGraph:
         return sorted(int(k) for k in found)
 
     def _join_via_pads(self, edge: _Edge, by_layer: _ByLayer) -> None:
-        for via in self.vias:
+        for via in self._distinct_vias:
             for layer in via.layers:
                 ids, tree = by_layer[layer]
                 centre = self._index[_key(layer, via.x_mm, via.y_mm)]
@@ -113,7 +133,7 @@ class TrackGraph:
                         edge(centre, i, math.hypot(x - via.x_mm, y - via.y_mm))
 
     def _join_t_junctions(self, edge: _Edge, by_layer: _ByLayer) -> None:
-        for tr in self.tracks:
+        for tr in self._distinct_tracks:
             if tr.mid is not None or tr.length_mm <= 0:
                 continue
             ids, tree = by_layer[tr.layer]

@@ -10,6 +10,35 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from auditor.model.vocabulary import PART_CONNECTIONS, PartConnection
+
+#: How a part on the sense net enters Cp (``LumpedPart.connection``):
+#: ``to-ground`` and ``to-net`` add their capacitance in parallel (another net
+#: is taken as AC ground: a supply or a driven pin is a low impedance at the
+#: sense frequency); ``series`` is a capacitor in the sense path, in series
+#: with the electrode's side; ``between-pins`` (to another pin of the
+#: controller, a charge-transfer sampling capacitor) is not added;
+#: ``series-resistor`` and ``resistor`` change no static capacitance;
+#: ``not-read`` (value field not understood), ``not-fitted`` (DNP) and
+#: ``other`` (a part whose capacitance is not known) are not added.
+CONNECTIONS: tuple[PartConnection, ...] = PART_CONNECTIONS
+
+
+@dataclass(frozen=True)
+class LumpedPart:
+    """A part on an electrode's sense net, as the Cp total counts it.
+
+    ``pf`` is the capacitance read from the value field (None: not a
+    capacitor or not read); ``connection`` one of :data:`CONNECTIONS`;
+    ``net`` the net of its other pad (``""`` when it has none).
+    """
+
+    ref: str
+    value: str
+    pf: float | None
+    connection: PartConnection
+    net: str = ""
+
 
 @dataclass(frozen=True)
 class PadMetrics:
@@ -27,6 +56,13 @@ class PadMetrics:
     quick_cp_pad_pf: float | None = None
     quick_cp_total_pf: float | None = None
     quick_delta_c_pf: float | None = None
+    #: The controller pin's own capacitance and the net effect of the parts
+    #: on the sense net, both included in ``cp_total_pf``: Cp total = pad +
+    #: trace (with vias) + pin + parts. ``cp_parts_pf`` is negative when a
+    #: series capacitor divides the electrode's share.
+    cp_pin_pf: float = 0.0
+    cp_parts_pf: float = 0.0
+    parts: tuple[LumpedPart, ...] = ()
 
     @property
     def quick_difference(self) -> tuple[float, float] | None:

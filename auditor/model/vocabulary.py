@@ -27,12 +27,16 @@ SensorKind = Literal["button", "slider", "wheel", "proximity", "mutual-tx", "mut
                      "keyswitch"]
 #: Severity names, worst first (the order ``--fail-on`` lists them).
 SeverityName = Literal["error", "warning", "info"]
+#: How a part on the sense net enters Cp total (``auditor.model.results.LumpedPart``).
+PartConnection = Literal["to-ground", "to-net", "series", "between-pins", "series-resistor",
+                         "resistor", "not-read", "not-fitted", "other"]
 
 POWER_PRESETS: tuple[PowerPreset, ...] = get_args(PowerPreset)
 TOUCH_SIDES: tuple[TouchSide, ...] = get_args(TouchSide)
 PAD_SIDES: tuple[PadSide, ...] = get_args(PadSide)
 SENSOR_KINDS: tuple[SensorKind, ...] = get_args(SensorKind)
 SEVERITY_NAMES: tuple[SeverityName, ...] = get_args(SeverityName)
+PART_CONNECTIONS: tuple[PartConnection, ...] = get_args(PartConnection)
 #: Self-capacitance kinds (the rest are the two sides of a mutual pair).
 SELF_KINDS: tuple[SensorKind, ...] = ("button", "slider", "wheel", "proximity")
 #: Kinds a finger touches; the touch rules judge these only.
@@ -42,6 +46,6 @@ TOUCH_KINDS: tuple[SensorKind, ...] = SELF_KINDS + ("mutual-tx", "mutual-rx")
 #: nets, references (no uuids, no coordinates, no float noise).
 FindingKey = tuple[str, str, tuple[str, ...], tuple[str, ...]]
 
-__all__ = ["PAD_SIDES", "POWER_PRESETS", "SELF_KINDS", "SENSOR_KINDS", "SEVERITY_NAMES",
-           "TOUCH_KINDS", "TOUCH_SIDES", "FindingKey", "PadSide", "PowerPreset", "SensorKind",
+__all__ = ["PAD_SIDES", "PART_CONNECTIONS", "POWER_PRESETS", "SELF_KINDS", "SENSOR_KINDS", "SEVERITY_NAMES",
+           "TOUCH_KINDS", "TOUCH_SIDES", "FindingKey", "PadSide", "PartConnection", "PowerPreset", "SensorKind",
            "SeverityName", "TouchSide"]

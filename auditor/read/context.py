@@ -100,6 +100,38 @@ class ReadContext:
             raise self.error(node, f"'{node.head}': number out of range: {text[:40]}")
         return value
 
+    def dimension(self, node: Node, index: int, item: Node, zero_ok: bool = False,
+                  default: float = 0.0) -> float:
+        """``node[index]`` as a width, size or radius of ``item`` (mm).
+
+        KiCad never writes one that is not a positive finite number (zero is
+        allowed where ``zero_ok``: a filled shape's pen). Anything else is a
+        ``bad-size`` warning on ``item`` and reads as 0, so the lost copper is
+        reported (``read-incomplete``) rather than silently dropped.
+        """
+        if index >= len(node) or not isinstance(node[index], str):
+            return default
+        text = node[index]
+        try:
+            value = float(text)
+        except ValueError:
+            raise self.error(node, f"'{node.head}': expected a number, got {text[:40]!r}") \
+                from None
+        if math.isfinite(value) and (value > 0 or (zero_ok and value == 0)):
+            if value > ABSURD_MM:
+                raise self.error(node, f"'{node.head}': number out of range: {text[:40]}")
+            return value
+        self.warn("bad-size", f"'{item.head}' with {node.head} {text[:20]}: not a positive "
+                  "size, its copper is not modelled", item)
+        return 0.0
+
+    def size_of(self, item: Node, key: str) -> float:
+        """The :meth:`dimension` of an item's ``(key N)`` child (0 when absent)."""
+        found = find(item, key)
+        if found is None or len(found) < 2:
+            return 0.0
+        return self.dimension(found, 1, item)
+
     def xy(self, node: Node) -> tuple[float, float]:
         """The two numbers of ``(at x y …)``, ``(start x y)``, ``(xy x y)`` …"""
         return self.num(node, 1), self.num(node, 2)

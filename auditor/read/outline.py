@@ -26,11 +26,10 @@ ENDPOINT_TOLERANCE_MM = 0.01
 def build_outline(edges: list[EdgePiece]) -> Outline:
     """The outline and cut-outs from every Edge.Cuts piece."""
     loops: list[BaseGeometry] = []
-    for piece in edges:
-        if piece.closed and len(piece.path) >= 3:
-            ring = Polygon(piece.path)
-            loops.append(ring if ring.is_valid else shapely.make_valid(ring))
-    open_paths = [p.path for p in edges if not p.closed and len(p.path) >= 2]
+    for path in _distinct([p.path for p in edges if p.closed and len(p.path) >= 3]):
+        ring = Polygon(path)
+        loops.append(ring if ring.is_valid else shapely.make_valid(ring))
+    open_paths = _distinct([p.path for p in edges if not p.closed and len(p.path) >= 2])
     open_ends = 0
     if open_paths:
         chained, open_ends = _chain(open_paths)
@@ -43,6 +42,19 @@ def build_outline(edges: list[EdgePiece]) -> Outline:
     inside = [c for c in rest if outer.contains(c.representative_point())]
     polygon = outer.difference(shapely.union_all(inside)) if inside else outer
     return Outline(polygon, rest, open_ends)
+
+
+def _distinct(paths: list[np.ndarray]) -> list[np.ndarray]:
+    """``paths`` less repeats (either direction): a line drawn twice is one
+    edge, and thousands of copies would make noding and snapping quadratic."""
+    seen: set[bytes] = set()
+    out = []
+    for path in paths:
+        forward, backward = path.tobytes(), path[::-1].tobytes()
+        if forward not in seen and backward not in seen:
+            seen.add(forward)
+            out.append(path)
+    return out
 
 
 def _chain(paths: list[np.ndarray]) -> tuple[list[BaseGeometry], int]:

@@ -52,8 +52,9 @@ def _shape_params(node: Node, ctx: ReadContext, base: ShapeParams | None) -> Sha
     if shape is not None:
         params = replace(params, shape=text_of(shape))
     if size is not None:
-        w = ctx.num(size, 1)
-        params = replace(params, width_mm=w, height_mm=ctx.num(size, 2, w))
+        w = ctx.dimension(size, 1, node)
+        h = ctx.dimension(size, 2, node, default=w) if w > 0 else w
+        params = replace(params, width_mm=w, height_mm=h)
     updates: dict[str, object] = {}
     for child in children(node):
         head = child.head

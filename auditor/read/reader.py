@@ -29,6 +29,7 @@ from auditor.read.context import (
 )
 from auditor.read.footprints import read_footprint
 from auditor.read.kicad_pro import with_project_netclasses
+from auditor.read.limits import check_item_count, read_limited
 from auditor.read.outline import build_outline
 from auditor.read.parts import BoardParts, EdgePiece
 from auditor.read.sexpr import Locator, Node, decode, gc_paused, iter_top, parse
@@ -54,7 +55,7 @@ def read_board(path: str | Path) -> Board:
     if file.is_dir():
         raise BoardFileError(path, "is a directory, not a board file" + _boards_inside(file))
     try:
-        data = file.read_bytes()
+        data = read_limited(file)
     except FileNotFoundError:
         raise BoardFileError(path, "no such file") from None
     except OSError as exc:
@@ -87,6 +88,7 @@ def read_board_text(text: str, path: str = "<string>") -> Board:
     >>> board.version, board.copper_layers
     (20240108, ('F.Cu', 'B.Cu'))
     """
+    check_item_count(text, path)
     locator = Locator(text)
     try:
         with gc_paused():

@@ -72,7 +72,7 @@ def width_of(node: Node, ctx: ReadContext) -> float:
     if width is None:
         stroke = find(node, "stroke")
         width = find(stroke, "width") if stroke is not None else None
-    return ctx.num(width, 1, 0.0) if width is not None else 0.0
+    return ctx.dimension(width, 1, node, zero_ok=True) if width is not None else 0.0
 
 
 def layers_of(node: Node, ctx: ReadContext) -> tuple[str, ...]:

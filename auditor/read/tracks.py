@@ -42,7 +42,7 @@ def read_segment(node: Node, ctx: ReadContext, parts: BoardParts) -> None:
         ctx.warn("track-not-copper", "skipped a track on a non-copper layer", node)
         return
     (x0, y0), (x1, y1) = _ends(node, ctx)
-    width = ctx.value_of(node, "width")
+    width = ctx.size_of(node, "width")
     # geometry for all straight tracks is built at once by finish_segments;
     # until then they wait as compact numbers (peak memory)
     parts.segment_numbers.extend((x0, y0, x1, y1, width))
@@ -92,7 +92,7 @@ def read_arc(node: Node, ctx: ReadContext, parts: BoardParts) -> None:
     if mid_node is None:
         raise ctx.error(node, "arc track needs (mid …)")
     mid = ctx.xy(mid_node)
-    width = ctx.value_of(node, "width")
+    width = ctx.size_of(node, "width")
     net = ctx.net_of(find(node, "net"))
     try:
         arc = geo.Arc(start, mid, end)
@@ -125,6 +125,6 @@ def read_via(node: Node, ctx: ReadContext, parts: BoardParts) -> None:
         if kind == "blind" and i > 0 and j < len(stack) - 1:
             kind = "buried"  # ≤ 9 writes "blind" for both (§9)
     line, column = ctx.place(node)
-    parts.vias.append(Via(x, y, ctx.value_of(node, "size"), ctx.value_of(node, "drill"),
+    parts.vias.append(Via(x, y, ctx.size_of(node, "size"), ctx.value_of(node, "drill"),
                           tuple(span), ctx.net_of(find(node, "net")), kind,
                           source_line=line, source_column=column))

@@ -34,6 +34,9 @@ def _metrics(m: PadMetrics | None) -> dict[str, Any] | None:
         "cp_pad_pf": significant(m.cp_pad_pf), "cp_trace_pf": significant(m.cp_trace_pf),
         "cp_total_pf": significant(m.cp_total_pf), "delta_c_pf": significant(m.delta_c_pf),
         "delta_ratio": significant(m.delta_ratio), "method": m.method, "notes": list(m.notes),
+        "cp_pin_pf": significant(m.cp_pin_pf), "cp_parts_pf": significant(m.cp_parts_pf),
+        "parts": [{"ref": p.ref, "value": p.value, "pf": significant(p.pf),
+                   "connection": p.connection, "net": p.net} for p in m.parts],
         **_quick(m),
     }
 

@@ -50,7 +50,8 @@ def _sensor_out(result: SensorResult, verdict: str) -> str:
         return f"verdict {verdict}, signal {result.strength}: no field solve"
     return (f"verdict {verdict}, signal {result.strength}, rank {result.rank}: "
             f"Cp {m.cp_total_pf:.3f} pF "
-            f"(pad {m.cp_pad_pf:.3f}, trace {m.cp_trace_pf:.3f}), dC {m.delta_c_pf:.4f} pF, "
+            f"(pad {m.cp_pad_pf:.3f}, trace {m.cp_trace_pf:.3f}, pin {m.cp_pin_pf:.3f}, "
+            f"parts {m.cp_parts_pf:.3f}), dC {m.delta_c_pf:.4f} pF, "
             f"ratio {m.delta_ratio * 100:.2f} %")
 
 

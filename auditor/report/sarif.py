@@ -13,6 +13,7 @@ import hashlib
 import os
 from pathlib import Path
 from typing import Any, TextIO
+from urllib.parse import quote
 
 from auditor.decide.records import DecidedFinding, Report, RuleInfo
 from auditor.report.as_json import dumps
@@ -26,15 +27,21 @@ LEVELS = {Severity.ERROR: "error", Severity.WARNING: "warning", Severity.INFO: "
 
 def artifact_uri(board_path: str) -> str:
     """The board as a URI relative to the working directory (where CI runs,
-    normally the repository root); an absolute ``file:`` URI when outside it."""
+    normally the repository root); an absolute ``file:`` URI when outside it.
+    Percent-encoded as RFC 3986 asks (spaces, ``#``, ``%``, ``:`` and non-ASCII
+    in a path would otherwise make an invalid or different reference).
+
+    >>> artifact_uri("hw/my board #2.kicad_pcb")
+    'hw/my%20board%20%232.kicad_pcb'
+    """
     path = Path(board_path)
     if not path.is_absolute():
-        return path.as_posix()
+        return quote(path.as_posix(), safe="/")
     try:
         rel = os.path.relpath(path, Path.cwd())
     except ValueError:  # another drive on Windows
         return path.as_uri()
-    return path.as_uri() if rel.startswith("..") else Path(rel).as_posix()
+    return path.as_uri() if rel.startswith("..") else quote(Path(rel).as_posix(), safe="/")
 
 
 def rule_name(rule_id: str) -> str:

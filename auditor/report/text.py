@@ -22,6 +22,7 @@ from auditor.decide.summary import summarize
 from auditor.report.summary_line import summary_text
 from auditor.report.text_electrodes import ORDERS, ordered_sensors, ratio_bar, sensor_table
 from auditor.report.text_fit import stream_width
+from auditor.report.text_lumped import render_lumped_lines
 from auditor.report.text_precise import render_precise_sections
 from auditor.rules.finding import Severity
 
@@ -189,6 +190,7 @@ def render_text(report: Report, stream: TextIO, colour: bool, *, order: str = "w
     _header(console, report)
     _cautions(console, report)
     sensor_table(console, report, order)
+    render_lumped_lines(console, ordered_sensors(report.sensors, order))
     render_precise_sections(console, report, ordered_sensors(report.sensors, order))
     _findings(console, report)
     _rule_counts(console, report)

@@ -30,6 +30,9 @@ class PadMetricsLike(Protocol):
     """The field-solve results a rule may read, in pF (ratio unitless)."""
 
     @property
+    def cp_pad_pf(self) -> float: ...
+
+    @property
     def cp_total_pf(self) -> float: ...
 
     @property

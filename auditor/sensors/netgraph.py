@@ -14,6 +14,7 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
+import shapely
 from scipy.sparse import coo_matrix
 from scipy.sparse.csgraph import dijkstra
 from shapely import STRtree
@@ -67,6 +68,9 @@ class NetGraph:
 
     def __init__(self, board: Board, net: str, start: tuple[str, BaseGeometry] | None = None):
         self.nodes: list[Node] = []
+        self._rep: np.ndarray = np.zeros(0, dtype=int)
+        #: Pairs of touching nodes in the graph (copies of an item count once).
+        self.edge_count = 0
         if start is not None:
             self.nodes.append(Node("electrode", (start[0],), start[1]))
         self._add_items(board, net)
@@ -88,47 +92,73 @@ class NetGraph:
                 for fill in zone.fills:
                     self.nodes.append(Node("zone", (fill.layer,), fill.geometry))
 
-    def _edges(self) -> tuple[list[int], list[int]]:
-        rows: list[int] = []
-        cols: list[int] = []
-        layers = sorted({lay for n in self.nodes for lay in n.layers})
-        for layer in layers:
-            idx = [i for i, n in enumerate(self.nodes) if layer in n.layers]
-            tree = STRtree([self.nodes[i].geometry for i in idx])
-            for k, i in enumerate(idx):
-                for j in tree.query(self.nodes[i].geometry, predicate="intersects"):
-                    if int(j) > k:
-                        rows.append(i)
-                        cols.append(idx[int(j)])
+    def _representatives(self) -> np.ndarray:
+        """For each node, the first node of the same kind with the same layers
+        and the same copper (duplicated items), else itself.
+
+        Copies of one item touch each other, so their intersection graph is
+        complete: thousands of copies would make millions of edges. They are
+        interchangeable for the walk, so only the first of them enters the
+        graph. Pads and the electrode stay themselves (their identity is
+        asked for).
+        """
+        rep = np.arange(len(self.nodes))
+        if not self.nodes:
+            return rep
+        shapes = shapely.to_wkb(np.asarray([n.geometry for n in self.nodes], dtype=object))
+        first: dict[tuple[str, tuple[str, ...], bytes], int] = {}
+        for i, (node, shape) in enumerate(zip(self.nodes, shapes, strict=True)):
+            if node.kind in ("track", "via", "zone"):
+                rep[i] = first.setdefault((node.kind, node.layers, bytes(shape)), i)
+        return rep
+
+    def _edges(self, rep: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Pairs of distinct graph nodes whose copper touches on a shared
+        layer, found with one bulk spatial-index query per layer."""
+        kept = np.flatnonzero(rep == np.arange(len(self.nodes)))
+        rows: list[np.ndarray] = []
+        cols: list[np.ndarray] = []
+        for layer in sorted({lay for i in kept.tolist() for lay in self.nodes[i].layers}):
+            idx = np.asarray([i for i in kept.tolist() if layer in self.nodes[i].layers])
+            geoms = np.asarray([self.nodes[i].geometry for i in idx.tolist()], dtype=object)
+            left, right = STRtree(geoms).query(geoms, predicate="intersects")
+            upper = left < right
+            rows.append(idx[left[upper]])
+            cols.append(idx[right[upper]])
         # A pad's shapes on several layers are one piece of copper (plated hole).
         by_pad: dict[int, list[int]] = {}
         for i, n in enumerate(self.nodes):
             if n.pad is not None:
                 by_pad.setdefault(id(n.pad), []).append(i)
         for members in by_pad.values():
-            rows.extend(members[:-1])
-            cols.extend(members[1:])
-        return rows, cols
+            rows.append(np.asarray(members[:-1], dtype=int))
+            cols.append(np.asarray(members[1:], dtype=int))
+        if not rows:
+            return np.zeros(0, dtype=int), np.zeros(0, dtype=int)
+        return np.concatenate(rows).astype(int), np.concatenate(cols).astype(int)
 
     def _solve(self) -> tuple[np.ndarray, np.ndarray]:
-        rows, cols = self._edges()
+        self._rep = self._representatives()
         size = len(self.nodes)
-        cost = np.array([max(n.length_mm, 0.0) for n in self.nodes])
-        weights = [(cost[i] + cost[j]) / 2 + _FREE for i, j in zip(rows, cols, strict=True)]
-        graph = coo_matrix((weights, (rows, cols)), shape=(size, size)).tocsr()
         if size == 0:
             return np.zeros((0,)), np.zeros((0,), dtype=int)
+        rows, cols = self._edges(self._rep)
+        self.edge_count = len(rows)
+        cost = np.array([max(n.length_mm, 0.0) for n in self.nodes])
+        weights = (cost[rows] + cost[cols]) / 2 + _FREE
+        graph = coo_matrix((weights, (rows, cols)), shape=(size, size)).tocsr()
         dist, pred = dijkstra(graph, directed=False, indices=0, return_predecessors=True)
-        return dist, pred
+        return dist[self._rep], pred
 
     def walk_to(self, goal: int) -> Walk | None:
         """The cheapest walk from node 0 to ``goal``, or ``None`` if unconnected."""
         if goal >= len(self.nodes) or not math.isfinite(float(self._dist[goal])):
             return None
-        order = [goal]
+        order = [int(self._rep[goal])]
         while order[-1] != 0:
             order.append(int(self._pred[order[-1]]))
-        return Walk(tuple(self.nodes[i] for i in reversed(order)))
+        # a duplicated goal is reached through its first copy, and ends the walk
+        return Walk(tuple(self.nodes[i] for i in reversed(order[1:])) + (self.nodes[goal],))
 
     def reachable(self) -> tuple[Node, ...]:
         """Every node connected to node 0."""

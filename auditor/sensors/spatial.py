@@ -10,7 +10,7 @@ pieces are islands) are computed once per board.
 
 from __future__ import annotations
 
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -47,12 +47,30 @@ def tiled(board: Board, layer: str) -> tuple[tuple[Piece, ...], STRtree]:
 
 def _tiled(board: Board, layer: str) -> tuple[tuple[Piece, ...], STRtree]:
     pieces: list[Piece] = []
-    for item in board.items_on(layer):
+    for item in _distinct(board.items_on(layer)):
         if shapely.get_num_coordinates(item.geometry) <= TILE_VERTICES:
             pieces.append(Piece(item, item.geometry))
             continue
         pieces += [Piece(item, tile) for tile in _tiles_of(item.geometry)]
     return tuple(pieces), STRtree([p.geometry for p in pieces])
+
+
+def _distinct(items: Sequence[CopperItem]) -> list[CopperItem]:
+    """``items`` less exact copies (same net, kind and copper) of an earlier
+    one: copies add no copper, and a board made by duplicating one track
+    thousands of times would otherwise cost every local query that many
+    intersections and unions."""
+    if not items:
+        return []
+    shapes = shapely.to_wkb(np.asarray([it.geometry for it in items], dtype=object))
+    seen: set[tuple[str, str, str, bytes]] = set()
+    out = []
+    for item, shape in zip(items, shapes, strict=True):
+        key = (item.net, item.source, item.owner, bytes(shape))
+        if key not in seen:
+            seen.add(key)
+            out.append(item)
+    return out
 
 
 def _tiles_of(geom: BaseGeometry) -> list[BaseGeometry]:

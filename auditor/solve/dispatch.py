@@ -18,6 +18,7 @@ from auditor.model.board import Board
 from auditor.model.results import PadMetrics
 from auditor.model.vocabulary import SELF_KINDS
 from auditor.sensors.model import Sensor
+from auditor.solve.lumped import with_lumped_parts
 from auditor.solve.mutual import metrics_for_mutual, mutual_partner
 from auditor.solve.quick import QuickSolves, metrics_from_quick
 from auditor.solve.setup import FieldInput, pad_setup_for, quick_unfit_reason
@@ -109,7 +110,7 @@ def solve_sensors(board: Board, sensors: tuple[Sensor, ...], config: Config, *,
             if tx is not None:
                 out[sensor.name] = metrics_for_mutual(sensor, tx, board, config, limits)
         in_order.finish(sensor.name)
-    return {s.name: out[s.name] for s in sensors if s.name in out}
+    return with_lumped_parts(out, sensors, board, limits)
 
 
 __all__ = ["Progress", "QuickSolves", "solve_sensors", "unsolved_reasons"]

@@ -22,9 +22,8 @@ from auditor.field.precise import (
     Finger,
     coupling_between,
     slider_scan,
-    solve_capacitance,
+    solve_variants,
 )
-from auditor.field.round_pad import merged_ground
 from auditor.model.board import Board
 from auditor.model.results import CouplingTable, PreciseExtras, SegmentScan
 from auditor.model.vocabulary import SELF_KINDS
@@ -59,8 +58,9 @@ def coupling_table(board: Board, sensors: tuple[Sensor, ...], config: Config,
     clear = {layer: shapely.union_all([s.geometry for s in pads if s.layer == layer])
              for layer in {s.layer for s in pads}}
     grounds = ground_conductors(board, stack, ground_net, near, {}, clear)
-    matrix = merged_ground(solve_capacitance(electrodes + grounds, stack.medium, cell_mm))
-    coupling = coupling_between(matrix, [c.name for c in electrodes])
+    names = [c.name for c in electrodes]
+    (solved,) = solve_variants(electrodes + grounds, [()], stack.medium, cell_mm, driven=names)
+    coupling = coupling_between(solved.matrix, names)
     return CouplingTable(coupling.names, coupling.crosstalk_pf, coupling.fraction_of_cp,
                          cell_mm)
 

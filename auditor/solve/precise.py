@@ -108,7 +108,10 @@ def ground_conductors(board: Board, stack: PreciseStack, ground_net: str,
             pieces.append(board.copper_of_net(layer, ground_net))
         if not pieces:
             continue
-        copper = shapely.union_all(pieces).intersection(window)
+        # Cut each piece to the window first: the union then handles only the
+        # window's share of a board-wide pour.
+        frame = box(*window.bounds)
+        copper = shapely.union_all([p.intersection(frame) for p in pieces]).intersection(window)
         if layer in keep_clear:
             copper = copper.difference(keep_clear[layer])
         copper = _polygons_only(copper)

@@ -22,6 +22,7 @@ from auditor.field.precise.solve import (
     richardson,
     solve_capacitance,
     solve_precise,
+    solve_variants,
 )
 
 __all__ = [
@@ -37,4 +38,5 @@ __all__ = [
     "slider_scan",
     "solve_capacitance",
     "solve_precise",
+    "solve_variants",
 ]

@@ -16,11 +16,14 @@ from dataclasses import dataclass
 
 import numpy as np
 import scipy.sparse
-import shapely
 from numpy.typing import NDArray
 
-from auditor.field.precise.cells import CellGrid
-from auditor.field.precise.kernels import rectangle_inverse_distance
+from auditor.field.precise.cells import CellGrid, subcell_centres
+from auditor.field.precise.kernels import (
+    lattice_differences,
+    rectangle_inverse_distance,
+    rectangle_primitive,
+)
 
 FloatArray = NDArray[np.float64]
 IntArray = NDArray[np.int64]
@@ -28,6 +31,7 @@ BoolArray = NDArray[np.bool_]
 
 SUBDIVISIONS = 4
 _REACH = 1
+_PAIRS_PER_CHUNK = 4096
 
 
 @dataclass(frozen=True)
@@ -40,28 +44,6 @@ class EdgeCells:
 
     cells: IntArray
     occupied: BoolArray
-
-
-def occupied_subcells(geometry: shapely.Geometry, grid: CellGrid, cells: IntArray,
-                      partial: BoolArray) -> BoolArray:
-    """Sub-cell masks for ``cells`` of one conductor; only ``partial`` ones are sampled."""
-    mask = np.ones((cells.size, SUBDIVISIONS * SUBDIVISIONS), dtype=bool)
-    if not partial.any():
-        return mask
-    x, y = _subcell_centres(grid, cells[partial])
-    mask[partial] = shapely.contains_xy(geometry, x.ravel(), y.ravel()).reshape(x.shape)
-    return mask
-
-
-def _subcell_centres(grid: CellGrid, cells: IntArray) -> tuple[FloatArray, FloatArray]:
-    step = grid.cell_mm / SUBDIVISIONS
-    offsets = (np.arange(SUBDIVISIONS) + 0.5) * step
-    sub_x = np.repeat(offsets, SUBDIVISIONS)
-    sub_y = np.tile(offsets, SUBDIVISIONS)
-    x0 = grid.x0_mm + (cells // grid.ny) * grid.cell_mm
-    y0 = grid.y0_mm + (cells % grid.ny) * grid.cell_mm
-    return (np.asarray(x0[:, None] + sub_x[None, :], dtype=float),
-            np.asarray(y0[:, None] + sub_y[None, :], dtype=float))
 
 
 def near_correction(grid: CellGrid, level: EdgeCells, direct_coefficient: float
@@ -99,9 +81,9 @@ def _near_pairs(grid: CellGrid, level: EdgeCells) -> tuple[IntArray, IntArray]:
     edge = np.broadcast_to(partial[:, None, None], neighbour.shape)
     keep = neighbour >= 0
     first, second = edge[keep], neighbour[keep]
-    pairs = np.unique(np.concatenate([np.stack([first, second], 1),
-                                      np.stack([second, first], 1)]), axis=0)
-    return pairs[:, 0], pairs[:, 1]
+    size = np.int64(level.cells.size)
+    keys = np.unique(np.concatenate([first * size + second, second * size + first]))
+    return keys // size, keys % size
 
 
 def _centres(grid: CellGrid, cells: IntArray) -> tuple[FloatArray, FloatArray]:
@@ -111,7 +93,7 @@ def _centres(grid: CellGrid, cells: IntArray) -> tuple[FloatArray, FloatArray]:
 
 
 def _centroids(grid: CellGrid, level: EdgeCells) -> tuple[FloatArray, FloatArray]:
-    x, y = _subcell_centres(grid, level.cells)
+    x, y = subcell_centres(grid, level.cells, SUBDIVISIONS)
     count = level.occupied.sum(axis=1)
     return (np.where(level.occupied, x, 0.0).sum(axis=1) / count,
             np.where(level.occupied, y, 0.0).sum(axis=1) / count)
@@ -120,14 +102,31 @@ def _centroids(grid: CellGrid, level: EdgeCells) -> tuple[FloatArray, FloatArray
 def _subcell_potential(grid: CellGrid, level: EdgeCells, sources: IntArray,
                        at_x: FloatArray, at_y: FloatArray) -> FloatArray:
     """``int dA / r`` at the points from the source cells' charge spread over their
-    occupied sub-cells, scaled to the charge a full uniform cell would carry."""
-    x, y = _subcell_centres(grid, level.cells[sources])
-    half = 0.5 * grid.cell_mm / SUBDIVISIONS
-    dx, dy = x - at_x[:, None], y - at_y[:, None]
-    values = rectangle_inverse_distance(dx - half, dx + half, dy - half, dy + half, 0.0)
+    occupied sub-cells, scaled to the charge a full uniform cell would carry.
+
+    A fully covered source is one rectangle; partly covered ones are summed
+    over their sub-cells in chunks, which bounds the temporary arrays.
+    """
     occupied = level.occupied[sources]
-    scale = SUBDIVISIONS * SUBDIVISIONS / occupied.sum(axis=1)
-    return np.asarray(np.where(occupied, values, 0.0).sum(axis=1) * scale, dtype=float)
+    full = occupied.all(axis=1)
+    centre_x, centre_y = _centres(grid, level.cells[sources[full]])
+    values = np.empty(sources.size)
+    values[full] = _cell_potential(grid, centre_x, centre_y, at_x[full], at_y[full])
+    partial = np.flatnonzero(~full)
+    for first in range(0, partial.size, _PAIRS_PER_CHUNK):
+        chunk = partial[first:first + _PAIRS_PER_CHUNK]
+        cells = level.cells[sources[chunk]]
+        steps = np.arange(SUBDIVISIONS + 1) * (grid.cell_mm / SUBDIVISIONS)
+        x = grid.x0_mm + (cells // grid.ny) * grid.cell_mm - at_x[chunk]
+        y = grid.y0_mm + (cells % grid.ny) * grid.cell_mm - at_y[chunk]
+        corners = rectangle_primitive((x[:, None] + steps)[:, :, None],
+                                      (y[:, None] + steps)[:, None, :], 0.0)
+        # sub-cell (i, j) is mask column i * S + j, as in subcell_centres
+        parts = lattice_differences(corners).reshape(chunk.size, -1)
+        mask = occupied[chunk]
+        values[chunk] = (np.where(mask, parts, 0.0).sum(axis=1)
+                         * (SUBDIVISIONS * SUBDIVISIONS) / mask.sum(axis=1))
+    return values
 
 
 def _cell_potential(grid: CellGrid, source_x: FloatArray, source_y: FloatArray,

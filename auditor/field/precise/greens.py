@@ -13,7 +13,9 @@ grid dense near the axis (Sommerfeld integral; physics.md section 1.11).
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 from numpy.typing import NDArray
@@ -31,6 +33,7 @@ FloatArray = NDArray[np.float64]
 
 _GAUSS_ORDER = 16
 _TABLE_POINTS = 320
+_RADII_PER_CHUNK = 32
 # exp(-38) ~ 3e-17: the remainder below this is under double precision.
 _DECAY_EXPONENT = 38.0
 
@@ -66,6 +69,23 @@ class LayeredGreens:
         return result
 
 
+def greens_covering(medium: LayeredMedium, radius_mm: float) -> LayeredGreens:
+    """A table good to at least ``radius_mm``, shared between solves (cached).
+
+    The radius is rounded up to a power of ``sqrt 2``, so the solves of one
+    board (every pad's window, the scans) reuse a few tables, and the table
+    a solve gets depends only on its own size, never on what was solved
+    before it.
+    """
+    steps = math.ceil(2.0 * math.log2(max(radius_mm, 1e-3)) - 1e-9)
+    return _cached_table(medium, 2.0 ** (0.5 * steps))
+
+
+@lru_cache(maxsize=8)
+def _cached_table(medium: LayeredMedium, radius_mm: float) -> LayeredGreens:
+    return tabulate_greens(medium, radius_mm)
+
+
 def tabulate_greens(medium: LayeredMedium, max_radius_mm: float) -> LayeredGreens:
     """Tabulate ``R_ij`` for ``0 <= rho <= max_radius_mm`` on every level pair."""
     direct = high_k_coefficients(medium)
@@ -79,15 +99,20 @@ def tabulate_greens(medium: LayeredMedium, max_radius_mm: float) -> LayeredGreen
     radii = scale * np.sinh(u_grid)
     k, weights = _wavenumber_quadrature(medium, max_radius_mm)
     spectral = spectral_potential(medium, k)
-    bessel_weights = j0(np.outer(radii, k)) * weights
+    remainder_k = spectral - direct[None] * np.exp(-k[:, None, None] * separations[None])
+    values = np.empty((radii.size, count, count))
+    # A few radii at a time: the J0 table of a large window (10^4 wavenumbers
+    # by 320 radii) would otherwise be the largest array of the whole solve.
+    for first in range(0, radii.size, _RADII_PER_CHUNK):
+        chunk = slice(first, first + _RADII_PER_CHUNK)
+        bessel_weights = j0(np.outer(radii[chunk], k)) * weights
+        values[chunk] = np.einsum("rk,kij->rij", bessel_weights, remainder_k)
     rows: list[tuple[CubicSpline | None, ...]] = []
     for target in range(count):
         row: list[CubicSpline | None] = []
         for source in range(count):
-            remainder_k = spectral[:, target, source] - direct[target, source] * np.exp(
-                -k * separations[target, source])
-            values = bessel_weights @ remainder_k
-            row.append(CubicSpline(u_grid, values, bc_type=((1, 0.0), "not-a-knot")))
+            row.append(CubicSpline(u_grid, values[:, target, source],
+                                   bc_type=((1, 0.0), "not-a-knot")))
         rows.append(tuple(row))
     return LayeredGreens(medium, direct, separations, max_radius_mm, tuple(rows), scale)
 

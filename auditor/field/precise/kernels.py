@@ -28,6 +28,19 @@ FloatArray = NDArray[np.float64]
 _NEAR_CELLS = 2
 
 
+def rectangle_primitive(x: FloatArray, y: FloatArray, height: float) -> FloatArray:
+    """``F(x, y)`` with ``d2F/dxdy = 1/sqrt(x^2 + y^2 + height^2)``; see
+    :func:`rectangle_inverse_distance`."""
+    z = height
+    r = np.sqrt(x * x + y * y + z * z)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        term_x = np.where(x == 0.0, 0.0, x * np.arcsinh(y / np.sqrt(x * x + z * z)))
+        term_y = np.where(y == 0.0, 0.0, y * np.arcsinh(x / np.sqrt(y * y + z * z)))
+    term_z = z * np.arctan2(x * y, z * r) if z > 0.0 else 0.0
+    value: FloatArray = term_x + term_y - term_z
+    return value
+
+
 def rectangle_inverse_distance(x1: FloatArray, x2: FloatArray, y1: FloatArray,
                                y2: FloatArray, height: float) -> FloatArray:
     """``int_{x1}^{x2} int_{y1}^{y2} dx dy / sqrt(x^2 + y^2 + height^2)``.
@@ -37,18 +50,20 @@ def rectangle_inverse_distance(x1: FloatArray, x2: FloatArray, y1: FloatArray,
     rectangle, e.g. E. Durand, *Electrostatique* I (1964); from memory,
     derivative checked by hand: d2F/dxdy = 1/r].
     """
-    def primitive(x: FloatArray, y: FloatArray) -> FloatArray:
-        z = height
-        r = np.sqrt(x * x + y * y + z * z)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            term_x = np.where(x == 0.0, 0.0, x * np.arcsinh(y / np.sqrt(x * x + z * z)))
-            term_y = np.where(y == 0.0, 0.0, y * np.arcsinh(x / np.sqrt(y * y + z * z)))
-        term_z = z * np.arctan2(x * y, z * r) if z > 0.0 else 0.0
-        value: FloatArray = term_x + term_y - term_z
-        return value
+    result: FloatArray = (rectangle_primitive(x2, y2, height) - rectangle_primitive(x1, y2, height)
+                          - rectangle_primitive(x2, y1, height)
+                          + rectangle_primitive(x1, y1, height))
+    return result
 
-    result: FloatArray = (primitive(x2, y2) - primitive(x1, y2) - primitive(x2, y1)
-                          + primitive(x1, y1))
+
+def lattice_differences(corners: FloatArray) -> FloatArray:
+    """Rectangle integrals from the primitive on a lattice of corners (last two axes).
+
+    Neighbouring rectangles share corners, so ``(n+1) x (m+1)`` primitive
+    values give all ``n x m`` integrals (a quarter of the evaluations).
+    """
+    result: FloatArray = (corners[..., 1:, 1:] - corners[..., :-1, 1:]
+                          - corners[..., 1:, :-1] + corners[..., :-1, :-1])
     return result
 
 
@@ -61,9 +76,10 @@ def cell_kernel(greens: LayeredGreens, target: int, source: int, cell_mm: float,
     p = np.arange(shape[0], dtype=float)[:, None] * cell_mm
     q = np.arange(shape[1], dtype=float)[None, :] * cell_mm
     p, q = np.broadcast_arrays(p, q)
-    half = 0.5 * cell_mm
-    singular = 2.0 * greens.direct[target, source] * rectangle_inverse_distance(
-        p - half, p + half, q - half, q + half, float(greens.separations_mm[target, source]))
+    edge_x = (np.arange(shape[0] + 1, dtype=float)[:, None] - 0.5) * cell_mm
+    edge_y = (np.arange(shape[1] + 1, dtype=float)[None, :] - 0.5) * cell_mm
+    singular = 2.0 * greens.direct[target, source] * lattice_differences(rectangle_primitive(
+        edge_x, edge_y, float(greens.separations_mm[target, source])))
     if greens.splines[target][source] is None:
         return np.asarray(singular, dtype=float)
     smooth = _smooth_part(greens, target, source, cell_mm, p, q)

@@ -17,92 +17,170 @@ import scipy.sparse
 from numpy.typing import NDArray
 
 from auditor.field.precise.cells import CellGrid
-from auditor.field.precise.greens import tabulate_greens
+from auditor.field.precise.greens import greens_covering
 from auditor.field.precise.kernels import cell_kernel, full_kernel
 from auditor.field.precise.medium import LayeredMedium
 
 FloatArray = NDArray[np.float64]
 IntArray = NDArray[np.int64]
 ComplexArray = NDArray[np.complex128]
+BoolArray = NDArray[np.bool_]
 
-_TILE_CELLS = 6
 _FFT_WORKERS = 2
+_APPLY_BYTES = 24 * 2**20
 
 
 @dataclass(frozen=True)
 class LevelKernels:
-    """Cell kernels between the meshed levels of one grid and medium."""
+    """Cell kernels between the meshed levels of one grid and medium.
+
+    ``spectra`` are real: each kernel is even in both offsets, so its
+    circular embedding is even and its discrete Fourier transform real.
+    """
 
     grid: CellGrid
     levels: tuple[int, ...]
     quadrants: tuple[tuple[FloatArray, ...], ...]
-    spectra: ComplexArray
+    spectra: FloatArray
     fft_shape: tuple[int, int]
 
 
 @lru_cache(maxsize=4)
 def level_kernels(medium: LayeredMedium, grid: CellGrid, levels: tuple[int, ...]) -> LevelKernels:
-    """Kernels and their FFTs for every pair of meshed levels (cached)."""
+    """Kernels and their FFTs for every pair of meshed levels (cached).
+
+    Reciprocity (the layered Green's function is symmetric in the two
+    levels) gives ``K_ab = K_ba``; each pair is computed once, which also
+    keeps the operator exactly symmetric for CG.
+    """
     diagonal_mm = grid.cell_mm * float(np.hypot(grid.nx, grid.ny)) + grid.cell_mm
-    greens = tabulate_greens(medium, diagonal_mm)
+    greens = greens_covering(medium, diagonal_mm)
     fft_shape = (scipy.fft.next_fast_len(2 * grid.nx - 1, real=True),
                  scipy.fft.next_fast_len(2 * grid.ny - 1, real=True))
-    quadrants = []
-    spectra = np.zeros((len(levels), len(levels), fft_shape[0], fft_shape[1] // 2 + 1),
-                       dtype=complex)
+    count = len(levels)
+    quadrants: list[list[FloatArray]] = [[] for _ in levels]
+    spectra = np.zeros((count, count, fft_shape[0], fft_shape[1] // 2 + 1))
     for a, target in enumerate(levels):
-        row = []
         for b, source in enumerate(levels):
+            if b < a:
+                quadrants[a].append(quadrants[b][a])
+                spectra[a, b] = spectra[b, a]
+                continue
             quadrant = cell_kernel(greens, target, source, grid.cell_mm, (grid.nx, grid.ny))
-            row.append(quadrant)
-            spectra[a, b] = scipy.fft.rfft2(full_kernel(quadrant, fft_shape))
-        quadrants.append(tuple(row))
-    return LevelKernels(grid, levels, tuple(quadrants), spectra, fft_shape)
+            quadrants[a].append(quadrant)
+            spectra[a, b] = scipy.fft.rfft2(full_kernel(quadrant, fft_shape)).real
+    return LevelKernels(grid, levels, tuple(tuple(row) for row in quadrants), spectra,
+                        fft_shape)
 
 
 @dataclass(frozen=True)
 class CellOperator:
-    """Potential-from-charge operator on the active cells of each level.
+    """Potential-from-charge operator on blocks of active cells.
 
-    ``cells[a]`` holds the flat grid indices of level ``a``'s unknowns, stored
-    consecutively from ``starts[a]``; ``near_correction`` (sparse) is added
-    for the neighbours of partly covered edge cells.
+    Block ``n`` holds the flat grid indices ``cells[n]`` of cells on level
+    ``kernels.levels[block_levels[n]]``, stored consecutively from
+    ``starts[n]``. Several blocks may lie on one level (alternative finger
+    positions, say); a right-hand side then uses at most one of them, as
+    given by the activity mask of :meth:`apply`. ``near_correction``
+    (sparse, block diagonal) is added for the neighbours of partly covered
+    edge cells.
     """
 
     kernels: LevelKernels
     cells: tuple[IntArray, ...]
     starts: tuple[int, ...]
     near_correction: scipy.sparse.csr_matrix
+    block_levels: tuple[int, ...]
 
     @property
     def size(self) -> int:
         """Number of unknowns."""
         return self.starts[-1]
 
-    def apply(self, charge: FloatArray) -> FloatArray:
-        """Potentials for charge densities ``charge`` of shape ``(size, nrhs)``."""
+    def apply(self, charge: FloatArray, active: BoolArray | None = None) -> FloatArray:
+        """Potentials for charge densities ``charge`` of shape ``(size, nrhs)``.
+
+        ``active[n, j]`` says whether block ``n`` takes part in column ``j``
+        (default: every block in every column); inactive blocks must carry no
+        charge and get zero potential. Levels a column does not use are
+        neither transformed nor transformed back.
+        """
+        if active is None:
+            active = np.ones((len(self.cells), charge.shape[1]), dtype=bool)
+        sheet_bytes = 16 * self.kernels.fft_shape[0] * (self.kernels.fft_shape[1] // 2 + 1)
+        per_call = max(1, _APPLY_BYTES // (sheet_bytes * (len(self.kernels.levels) + 3)))
+        if charge.shape[1] > per_call:
+            # Columns in groups: the spectra of every level and column at once
+            # would set the peak memory of a large window.
+            return np.concatenate([self.apply(charge[:, first:first + per_call],
+                                              active[:, first:first + per_call])
+                                   for first in range(0, charge.shape[1], per_call)], axis=1)
+        on_level = self._level_columns(active)
+        spectra = [_padded_rfft2(self._sheets(charge, active, b, columns), self.kernels.fft_shape)
+                   if columns.size else None for b, columns in enumerate(on_level)]
+        # near_correction is block diagonal: inactive blocks carry no charge and
+        # so get no potential from it either.
+        potential = np.asarray(self.near_correction @ charge, dtype=float)
+        for a, columns in enumerate(on_level):
+            if columns.size:
+                fields = self._fields(a, columns, on_level, spectra)
+                for n in self._blocks_on(a):
+                    rows = slice(self.starts[n], self.starts[n + 1])
+                    used = active[n, columns]
+                    potential[rows, columns[used]] += fields[used][:, self.cells[n]].T
+        return potential
+
+    def _fields(self, target: int, columns: IntArray, on_level: list[IntArray],
+                spectra: list[ComplexArray | None]) -> FloatArray:
+        """Potential sheets on level ``target`` for ``columns``, flat cells."""
         grid = self.kernels.grid
-        nrhs = charge.shape[1]
-        sheets = np.zeros((len(self.cells), nrhs, grid.nx * grid.ny))
-        for a, cells in enumerate(self.cells):
-            sheets[a][:, cells] = charge[self.starts[a]:self.starts[a + 1]].T
-        sheets_2d = sheets.reshape(len(self.cells), nrhs, grid.nx, grid.ny)
-        spectra = _padded_rfft2(sheets_2d, self.kernels.fft_shape)
-        mixed = np.einsum("abij,bnij->anij", self.kernels.spectra, spectra)
+        shape = (columns.size, self.kernels.fft_shape[0], self.kernels.fft_shape[1] // 2 + 1)
+        mixed = np.zeros(shape, dtype=complex)
+        for b, source_columns in enumerate(on_level):
+            source = spectra[b]
+            if source is None:
+                continue
+            kernel = self.kernels.spectra[target, b]
+            if np.array_equal(source_columns, columns):
+                mixed += source * kernel
+                continue
+            # Only the columns that use both levels get a contribution.
+            where = np.searchsorted(source_columns, columns)
+            clipped = np.minimum(where, source_columns.size - 1)
+            present = np.flatnonzero(source_columns[clipped] == columns)
+            mixed[present] += source[clipped[present]] * kernel
         fields = _cropped_irfft2(mixed, self.kernels.fft_shape, (grid.nx, grid.ny))
-        fields = fields.reshape(len(self.cells), nrhs, -1)
-        potential = np.empty_like(charge)
-        for a, cells in enumerate(self.cells):
-            potential[self.starts[a]:self.starts[a + 1]] = fields[a][:, cells].T
-        return np.asarray(potential + self.near_correction @ charge, dtype=float)
+        return fields.reshape(columns.size, -1)
+
+    def _blocks_on(self, level_index: int) -> list[int]:
+        return [n for n, a in enumerate(self.block_levels) if a == level_index]
+
+    def _level_columns(self, active: BoolArray) -> list[IntArray]:
+        """Per level, the columns in which some block on it is active."""
+        out = []
+        for a in range(len(self.kernels.levels)):
+            blocks = self._blocks_on(a)
+            used = active[blocks].any(axis=0) if blocks else np.zeros(active.shape[1], bool)
+            out.append(np.flatnonzero(used))
+        return out
+
+    def _sheets(self, charge: FloatArray, active: BoolArray, level_index: int,
+                columns: IntArray) -> FloatArray:
+        grid = self.kernels.grid
+        sheets = np.zeros((columns.size, grid.nx * grid.ny))
+        for n in self._blocks_on(level_index):
+            used = active[n, columns]
+            block = charge[self.starts[n]:self.starts[n + 1], columns[used]]
+            sheets[np.flatnonzero(used)[:, None], self.cells[n][None, :]] = block.T
+        return sheets.reshape(columns.size, grid.nx, grid.ny)
 
     def dense(self) -> FloatArray:
         """The same operator as a dense matrix (for small cross-checks only)."""
         ny = self.kernels.grid.ny
         blocks = []
-        for a, rows in enumerate(self.cells):
+        for a, rows in zip(self.block_levels, self.cells, strict=True):
             row_blocks = []
-            for b, cols in enumerate(self.cells):
+            for b, cols in zip(self.block_levels, self.cells, strict=True):
                 dx = np.abs(rows[:, None] // ny - cols[None, :] // ny)
                 dy = np.abs(rows[:, None] % ny - cols[None, :] % ny)
                 row_blocks.append(self.kernels.quadrants[a][b][dx, dy])
@@ -126,117 +204,56 @@ def _cropped_irfft2(spectra: ComplexArray, shape: tuple[int, int],
 
 
 def cell_operator(kernels: LevelKernels, cells: tuple[IntArray, ...],
-                  near_corrections: tuple[scipy.sparse.csr_matrix, ...] | None = None
-                  ) -> CellOperator:
-    """Operator over the given active cells, one index array per meshed level.
+                  near_corrections: tuple[scipy.sparse.csr_matrix, ...] | None = None,
+                  block_levels: tuple[int, ...] | None = None) -> CellOperator:
+    """Operator over the given blocks of active cells.
 
-    ``near_corrections`` holds one sparse same-level correction per level.
+    ``block_levels`` gives each block's index into ``kernels.levels``
+    (default: one block per meshed level, in order); ``near_corrections``
+    holds one sparse same-level correction per block.
     """
     starts = tuple(int(s) for s in np.concatenate([[0], np.cumsum([c.size for c in cells])]))
     if near_corrections is None:
         near = scipy.sparse.csr_matrix((starts[-1], starts[-1]))
     else:
         near = scipy.sparse.block_diag(near_corrections, format="csr")
-    return CellOperator(kernels, cells, starts, near)
+    levels = block_levels if block_levels is not None else tuple(range(len(cells)))
+    return CellOperator(kernels, cells, starts, near, levels)
 
 
-def near_field_preconditioner(operator: CellOperator) -> Callable[[FloatArray], FloatArray]:
-    """Block-Jacobi over square tiles of cells on each level.
-
-    Each tile's dense self-interaction is inverted exactly; the blocks are
-    symmetric positive definite, so the result suits preconditioned CG.
-    """
-    members, blocks = [], []
-    for a, cells in enumerate(operator.cells):
-        local = _tile_members(operator.kernels.grid, cells)
-        valid = local >= 0
-        blocks.append(_tile_blocks(operator.kernels.quadrants[a][a],
-                                   cells[np.where(valid, local, 0)],
-                                   operator.kernels.grid.ny, valid))
-        members.append(np.where(valid, local + operator.starts[a], -1))
-    all_members = np.concatenate(members)
-    all_blocks = np.concatenate(blocks)
-    _add_near_entries(all_blocks, all_members, operator.near_correction)
-    all_inverses = np.linalg.inv(all_blocks)
-    valid = all_members >= 0
-    gather = np.where(valid, all_members, operator.size)
-
-    def apply(residual: FloatArray) -> FloatArray:
-        padded = np.vstack([residual, np.zeros((1, residual.shape[1]))])
-        solved = all_inverses @ padded[gather]
-        result = np.empty_like(residual)
-        result[all_members[valid]] = solved[valid]
-        return result
-
-    return apply
-
-
-def _add_near_entries(blocks: FloatArray, members: IntArray,
-                      near: scipy.sparse.csr_matrix) -> None:
-    """Add the sparse edge correction to the tile blocks it falls in."""
-    if near.nnz == 0:
-        return
-    tile_of = np.empty(near.shape[0], dtype=np.int64)
-    slot_of = np.empty(near.shape[0], dtype=np.int64)
-    tiles, slots = np.nonzero(members >= 0)
-    tile_of[members[tiles, slots]] = tiles
-    slot_of[members[tiles, slots]] = slots
-    entries = near.tocoo()
-    same = tile_of[entries.row] == tile_of[entries.col]
-    np.add.at(blocks, (tile_of[entries.row[same]], slot_of[entries.row[same]],
-                       slot_of[entries.col[same]]), entries.data[same])
-
-
-def _tile_members(grid: CellGrid, cells: IntArray) -> IntArray:
-    """Local unknown indices per tile, padded with -1, shape ``(tiles, T*T)``."""
-    ix, iy = cells // grid.ny, cells % grid.ny
-    tiles_y = -(-grid.ny // _TILE_CELLS)
-    tile = (ix // _TILE_CELLS) * tiles_y + iy // _TILE_CELLS
-    order = np.argsort(tile, kind="stable")
-    tile_sorted = tile[order]
-    unique, first = np.unique(tile_sorted, return_index=True)
-    rank = np.arange(cells.size) - np.repeat(first, np.diff(np.append(first, cells.size)))
-    members = np.full((unique.size, _TILE_CELLS * _TILE_CELLS), -1, dtype=np.int64)
-    members[np.searchsorted(unique, tile_sorted), rank] = order
-    return members
-
-
-def _tile_blocks(quadrant: FloatArray, cells: IntArray, ny: int, valid: NDArray[np.bool_]
-                 ) -> FloatArray:
-    ix, iy = cells // ny, cells % ny
-    dx = np.abs(ix[:, :, None] - ix[:, None, :])
-    dy = np.abs(iy[:, :, None] - iy[:, None, :])
-    block = quadrant[dx, dy]
-    pair_valid = valid[:, :, None] & valid[:, None, :]
-    identity = np.broadcast_to(np.eye(valid.shape[1]), block.shape)
-    result: FloatArray = np.where(pair_valid, block, identity * quadrant[0, 0])
-    return result
-
-
-def conjugate_gradient(apply_matrix: Callable[[FloatArray], FloatArray],
+def conjugate_gradient(apply_matrix: Callable[[FloatArray, IntArray], FloatArray],
                        apply_preconditioner: Callable[[FloatArray], FloatArray],
                        rhs: FloatArray, tolerance: float, max_iterations: int
-                       ) -> tuple[FloatArray, int]:
+                       ) -> tuple[FloatArray, FloatArray, int]:
     """Preconditioned CG on every column of ``rhs`` at once.
 
-    Returns the solution and the number of iterations; raises
-    :class:`RuntimeError` if some column has not reached ``tolerance``
-    (relative residual) within ``max_iterations``.
+    ``apply_matrix(values, columns)`` applies the operator to ``values``,
+    the current directions of the still unconverged ``columns`` of ``rhs``:
+    a column stops costing operator applications as soon as it has reached
+    ``tolerance`` (relative residual). Returns the solution, its residual
+    ``rhs - A solution`` and the number of iterations of the slowest column;
+    raises :class:`RuntimeError` if some column has not converged within
+    ``max_iterations``.
     """
     solution = np.zeros_like(rhs)
-    residual = rhs.copy()
+    final_residual = rhs.copy()
     rhs_norm = np.maximum(np.linalg.norm(rhs, axis=0), 1e-300)
+    live = np.flatnonzero(np.linalg.norm(rhs, axis=0) > 0.0)
+    residual = rhs[:, live].copy()
     preconditioned = apply_preconditioner(residual)
     direction = preconditioned.copy()
     rz = np.sum(residual * preconditioned, axis=0)
     for iteration in range(1, max_iterations + 1):
-        image = apply_matrix(direction)
+        image = apply_matrix(direction, live)
         curvature = np.sum(direction * image, axis=0)
         step = np.divide(rz, curvature, out=np.zeros_like(rz), where=curvature != 0.0)
-        solution += step * direction
+        solution[:, live] += step * direction
         residual -= step * image
-        if np.all(np.linalg.norm(residual, axis=0) <= tolerance * rhs_norm):
-            return solution, iteration
+        going = np.linalg.norm(residual, axis=0) > tolerance * rhs_norm[live]
+        final_residual[:, live[~going]] = residual[:, ~going]
+        if not going.any():
+            return solution, final_residual, iteration
+        live, residual, direction, rz = live[going], residual[:, going], direction[:, going], rz[going]
         preconditioned = apply_preconditioner(residual)
         rz_new = np.sum(residual * preconditioned, axis=0)
         beta = np.divide(rz_new, rz, out=np.zeros_like(rz), where=rz != 0.0)

@@ -18,7 +18,7 @@ from auditor.errors import UsageError
 from auditor.field.circuit import touch_network
 from auditor.field.matrix import CapacitanceMatrix
 from auditor.field.precise.medium import LayeredMedium
-from auditor.field.precise.solve import Conductor, solve_capacitance
+from auditor.field.precise.solve import Conductor, solve_variants
 
 FINGER = "finger"
 
@@ -136,14 +136,18 @@ def slider_scan(segments: Sequence[Conductor], finger: Finger, path: LineString,
     fixed = list(segments) + list(others)
     window = shapely.union_all([c.geometry for c in fixed] + disks).envelope
     names = [c.name for c in segments]
-    baseline = solve_capacitance(fixed, medium, cell_mm, window=window)
+    # The baseline and every finger position in one batched solve: the segments
+    # are meshed once and share one operator (docs/precise-mode.md, Speed).
+    variants = [()] + [(Conductor(FINGER, disk, finger.level),) for disk in disks]
+    # A grounded finger needs only the segments' own columns; the body network
+    # reduces the whole matrix.
+    driven = names if body is None else None
+    baseline, *touched = (s.matrix for s in solve_variants(fixed, variants, medium, cell_mm,
+                                                           window=window, driven=driven))
     base_self = _segment_self_pf(baseline, names, body, touched=False)
-    matrices, deltas = [], []
-    for disk in disks:
-        matrix = solve_capacitance(fixed + [Conductor(FINGER, disk, finger.level)], medium,
-                                   cell_mm, window=window)
-        matrices.append(matrix)
-        deltas.append(_segment_self_pf(matrix, names, body, touched=True) - base_self)
+    matrices = touched
+    deltas = [_segment_self_pf(matrix, names, body, touched=True) - base_self
+              for matrix in touched]
     centres = np.array([path.project(c.geometry.centroid) for c in segments])
     return _analysed(names, centres, positions, np.array(deltas), dead_fraction, matrices,
                      period)

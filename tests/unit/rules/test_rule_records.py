@@ -141,6 +141,10 @@ PAIRS = [
          context(sensor(), metrics={"TOUCH1": metrics(dc=0.16)})),
 ]
 
+# ratio: 5.5 / 10 = 55 % > 50 %; 4.5 / 10 = 45 % (max_plausible_ratio 0.5, rules/default.toml)
+PAIRS += [Pair("model-implausible", context(sensor(), metrics={"TOUCH1": metrics(10.0, 5.5)}),
+               context(sensor(), metrics={"TOUCH1": metrics(10.0, 4.5)}))]
+
 # the field step ran but could not solve the electrode (e.g. a loop in quick mode)
 PAIRS += [Pair("electrode-unsolved", context(sensor(), unsolved={"TOUCH1": "a loop"}),
                context(sensor()))]
@@ -312,3 +316,30 @@ def test_no_ground_near_counts_as_wide() -> None:
     assert ids(context(s), "ground-gap-wide") == ["ground-gap-wide"]
     prox = replace(s, kind="proximity")
     assert ids(context(prox), "ground-gap-wide") == []
+
+
+def _pad_metrics(cp_pad: float, dc: float = 0.5) -> PadMetrics:
+    return PadMetrics(cp_pad_pf=cp_pad, cp_trace_pf=1.0, cp_total_pf=cp_pad + 6.0,
+                      delta_c_pf=dc, delta_ratio=dc / (cp_pad + 6.0))
+
+
+def test_pad_below_isolated_disk_is_implausible() -> None:
+    """10 mm disk: 8 eps0 a = 0.3542 pF (Jackson 1999 sec. 3.13); the floor is
+    applied 2 % low, so 0.34 pF is flagged and 0.35 pF is not."""
+    for cp_pad, expect in ((0.34, ["model-implausible"]), (0.35, []), (2.0, [])):
+        ctx = context(sensor(), metrics={"TOUCH1": _pad_metrics(cp_pad)})
+        assert ids(ctx, "model-implausible") == expect, cp_pad
+
+
+def test_negative_change_is_implausible_and_measured() -> None:
+    ctx = context(sensor(), metrics={"TOUCH1": _pad_metrics(3.0, dc=-0.01)})
+    (finding,) = get_rule("model-implausible").run(ctx)
+    assert "negative" in finding.message and dict(finding.measured)["delta_c_pf"] == -0.01
+    zero = context(sensor(), metrics={"TOUCH1": _pad_metrics(3.0, dc=0.0)})
+    assert ids(zero, "model-implausible") == []
+
+
+def test_implausible_not_judged_on_mutual_pairs() -> None:
+    rx = sensor(kind="mutual-rx")
+    ctx = context(rx, metrics={"TOUCH1": _pad_metrics(0.1, dc=-0.05)})
+    assert ids(ctx, "model-implausible") == []

@@ -20,6 +20,7 @@ MANIFEST = json.loads((Path(__file__).resolve().parents[3] / "fixtures" / "rules
 #: without the field step (for speed), so these are tested on records here and
 #: end to end in tests/unit/solve/test_setup.py and tests/integration.
 NEEDS_FIELD = {"cp-too-high", "delta-c-low", "ratio-low", "electrode-unsolved",
+               "model-implausible",
                # precise-mode rules: need a --precise solve (tests/unit/rules/precise_records.py)
                "crosstalk-high", "slider-dead-zone", "slider-reversal", "slider-nonlinear"}
 

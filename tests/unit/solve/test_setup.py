@@ -85,7 +85,10 @@ def test_every_self_cap_sensor_gets_quick_metrics(boards, base_metrics) -> None:
         # a 10 mm pad under 2 mm plastic: Cp of a few pF, ΔC 0.1-1 pF (physics.md §4.1,
         # common practice, no source)
         assert 1.0 < metrics.cp_pad_pf < 10.0 and 0.1 < metrics.delta_c_pf < 1.0
-        assert metrics.cp_total_pf == pytest.approx(metrics.cp_pad_pf + metrics.cp_trace_pf)
+        # Cp total = pad + trace + the profile's pin_pf (5 pF); no parts but R1
+        assert metrics.cp_pin_pf == 5.0 and metrics.cp_parts_pf == pytest.approx(0.0, abs=1e-12)
+        assert metrics.cp_total_pf == pytest.approx(metrics.cp_pad_pf + metrics.cp_trace_pf
+                                                    + metrics.cp_pin_pf)
         assert metrics.delta_ratio == pytest.approx(metrics.delta_c_pf / metrics.cp_total_pf)
         assert any("finger 10 mm" in note for note in metrics.notes)
 
