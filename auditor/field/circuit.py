@@ -91,6 +91,17 @@ def reduced(matrix: CapacitanceMatrix, reference: str | None,
     return CapacitanceMatrix.from_array(tuple(keep), c_aa)
 
 
+def two_terminal_pf(matrix: CapacitanceMatrix, node_a: str, node_b: str) -> float:
+    """Capacitance between two conductors of an isolated pair, others floating.
+
+    (C11 C22 - C12^2) / (C11 + C22 + 2 C12) after reducing to the pair
+    [pub: Smolic & Klajn 2021; physics reference sec. 1.12].
+    """
+    pair = reduced(matrix, None, [node_a, node_b]).array()
+    c11, c22, c12 = pair[0, 0], pair[1, 1], pair[0, 1]
+    return float((c11 * c22 - c12 ** 2) / (c11 + c22 + 2 * c12))
+
+
 #: Name of the earth node. It is the field solve's reference: "infinity" of
 #: the open-boundary model is the room, i.e. earth.
 EARTH = "earth"

@@ -9,23 +9,10 @@ import pytest
 from scipy.constants import epsilon_0
 
 from auditor.field.axisym import AxisymModel, DielectricSlab, Sheet, solve_axisym
-from auditor.field.circuit import reduced
-from auditor.field.matrix import CapacitanceMatrix
+from auditor.field.circuit import reduced, two_terminal_pf
 
 #: pF per eps0 * (1 mm): the unit the reference tables use (C / (eps0 a), a = 1 mm).
 EPS0_A = epsilon_0 * 1e-3 * 1e12
-
-
-def two_terminal_pf(matrix: CapacitanceMatrix, node_a: str, node_b: str) -> float:
-    """Capacitance between two conductors of an isolated pair, others floating.
-
-    (C11 C22 - C12^2) / (C11 + C22 + 2 C12) after reducing to the pair
-    [pub: Smolic & Klajn 2021; physics reference sec. 1.12].
-    """
-    pair = reduced(matrix, None, [node_a, node_b]).array()
-    c11, c22, c12 = pair[0, 0], pair[1, 1], pair[0, 1]
-    return float((c11 * c22 - c12 ** 2) / (c11 + c22 + 2 * c12))
-
 
 
 def _disk_pair(separation: float) -> AxisymModel:
