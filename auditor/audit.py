@@ -27,7 +27,7 @@ from auditor.model.items import ReadWarning
 from auditor.model.results import PadMetrics
 from auditor.read import read_board
 from auditor.rules.context import RuleContext, RuleSettings, ThresholdValue
-from auditor.rules.registry import all_rules, run_rules
+from auditor.rules.registry import RuleSpec, all_rules, run_rules
 from auditor.sensors import find_sensors, mark_sense_neighbours, measure_each
 from auditor.sensors.model import Sensor, name_order
 from auditor.sensors.selection import SensorSelection
@@ -57,6 +57,9 @@ class AuditOptions:
     baseline: str | None = None
     #: Accept every current finding (what ``--write-baseline`` records).
     accept_all: bool = False
+    #: Without ``baseline``, use the configuration's ``baseline`` key (the
+    #: gated commands; never the other side of a comparison).
+    config_baseline: bool = False
     #: Attach predicted fixes to the findings (:mod:`auditor.audit_suggest`).
     suggest: bool = False
 
@@ -188,7 +191,14 @@ def run_audit(board_path: str | Path, options: AuditOptions | None = None) -> Re
     report = build_report(board, sensors, metrics, setup, extras, unsolved)
     if opts.solve and opts.suggest:
         report = with_suggestions(report, board, sensors, setup.config, setup.thresholds)
+    if opts.config_baseline and not opts.baseline and setup.config.baseline:
+        opts = replace(opts, baseline=setup.config.baseline)
     return with_baseline(report, opts)
+
+
+def configured_baseline(board_path: str | Path, config_path: str | None = None) -> str:
+    """The baseline file the configuration for ``board_path`` names, or ``""``."""
+    return discover_config(board_path, config_path).baseline
 
 
 def with_baseline(report: Report, options: AuditOptions) -> Report:
@@ -238,6 +248,18 @@ def _precise_extras(board: Board, sensors: tuple[Sensor, ...],
     return precise_extras(board, sensors, setup.config)
 
 
+def shown_path(path: str) -> str:
+    """``path`` relative to the working folder when inside it, else as it is
+    (a configuration found by walking up is known by its absolute path)."""
+    if not path or not Path(path).is_absolute():
+        return path
+    try:
+        relative = Path(path).relative_to(Path.cwd())
+    except ValueError:
+        return path
+    return relative.as_posix()
+
+
 def build_report(board: Board, sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetrics],
                  setup: AuditSetup, extras: PreciseExtras | None = None,
                  unsolved: Mapping[str, str] | None = None) -> Report:
@@ -256,7 +278,8 @@ def build_report(board: Board, sensors: tuple[Sensor, ...], metrics: Mapping[str
                      tool_version=__version__, profile=setup.profile.name,
                      overlay=config.describe_overlay(), touch_side=config.touch_side,
                      power=config.power, fail_on=config.fail_on,
-                     max_ratio_loss=float(setup.thresholds.get("max_ratio_loss", 0.2))),
+                     max_ratio_loss=float(setup.thresholds.get("max_ratio_loss", 0.2)),
+                     config_path=shown_path(config.source)),
         sensors=_sensor_results(sensors, metrics, setup.thresholds),
         findings=decision.findings,
         rules=tuple(RuleInfo(s.rule_id, s.title, s.rationale, s.fix, s.severity)
@@ -265,9 +288,28 @@ def build_report(board: Board, sensors: tuple[Sensor, ...], metrics: Mapping[str
         stale_waivers=decision.stale_waivers,
         rule_errors=tuple(sorted(ran.errors)),
         cautions=_cautions(config.power),
+        skipped_rules=skipped_rules(specs, active, precise=extras is not None),
         board=board,
         precise=extras,
     )
+
+
+#: The module of the rules that judge 3-D results only (``--precise``).
+PRECISE_RULES_MODULE = "auditor.rules.precise_rules"
+SKIPPED_OFF = "switched off by the profile or the configuration"
+SKIPPED_QUICK = "judges 3-D results only: runs with --precise"
+
+
+def skipped_rules(specs: tuple[RuleSpec, ...], active: set[str],
+                  precise: bool) -> tuple[tuple[str, str], ...]:
+    """``(rule id, why)`` for each rule that did not judge this run, by id."""
+    skipped = []
+    for spec in specs:
+        if spec.rule_id not in active:
+            skipped.append((spec.rule_id, SKIPPED_OFF))
+        elif spec.module == PRECISE_RULES_MODULE and not precise:
+            skipped.append((spec.rule_id, SKIPPED_QUICK))
+    return tuple(sorted(skipped))
 
 
 def _sensor_results(sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetrics],

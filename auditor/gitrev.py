@@ -24,6 +24,10 @@ from auditor.errors import LocatedError, UsageError
 CONFIG_NAMES: tuple[str, ...] = ("padaudit.toml", "pyproject.toml")
 
 
+#: Name prefix of the temporary folders holding copies at a revision.
+_MIRROR_PREFIX = "padaudit-rev-"
+
+
 def run_git(args: Sequence[str], cwd: str | Path) -> bytes:
     """Run ``git *args`` in ``cwd`` and return its stdout.
 
@@ -114,7 +118,7 @@ def board_at(file: str | Path, rev: str) -> Iterator[Path]:
         When the board does not exist at that revision.
     """
     where, content = _board_blob(file, rev)
-    with tempfile.TemporaryDirectory(prefix="padaudit-rev-") as tmp:
+    with tempfile.TemporaryDirectory(prefix=_MIRROR_PREFIX) as tmp:
         mirror = Path(tmp)
         for extra in companions(where.path):
             data = blob(where.root, rev, extra)
@@ -140,6 +144,29 @@ def relabelled(exc: LocatedError, mirror: Path, rev: str) -> LocatedError:
     copy = type(exc)(label(rev, PurePosixPath(inside.as_posix())), exc.message, exc.line,
                      exc.column)
     return copy
+
+
+def mirror_root(copy: Path) -> Path:
+    """The temporary folder holding a copy made by :func:`board_at` (the
+    repository's top folder in the copy)."""
+    for folder in copy.parents:
+        if folder.name.startswith(_MIRROR_PREFIX):
+            return folder
+    return copy.parent
+
+
+def fetch_companion(root: Path, copy: Path, wanted: Path, rev: str) -> bool:
+    """Write into the temporary folder of ``copy`` the file ``wanted`` (a path
+    inside that folder) as it is at ``rev`` (``""``: staged) in the
+    repository at ``root``, for files a configuration names (its baseline).
+    False when git has no such file."""
+    mirror = mirror_root(copy)
+    relative = PurePosixPath(wanted.relative_to(mirror).as_posix())
+    data = blob(root, rev, relative)
+    if data is None:
+        return False
+    _write(mirror, relative, data)
+    return True
 
 
 def check_board_at(file: str | Path, rev: str) -> None:

@@ -12,6 +12,7 @@ from __future__ import annotations
 import argparse
 import dataclasses
 from collections.abc import Callable
+from pathlib import Path
 from typing import TYPE_CHECKING
 
 from auditor.decide.records import Report
@@ -38,11 +39,13 @@ def options_from_args(args: argparse.Namespace) -> AuditOptions:
 
 
 def gated_options(args: argparse.Namespace) -> AuditOptions:
-    """:func:`options_from_args` with the gate's ``--baseline`` or
-    ``--write-baseline`` (which accepts every current finding)."""
+    """:func:`options_from_args` with the gate's ``--baseline`` (else the
+    configuration's ``baseline``) or ``--write-baseline`` (which accepts
+    every current finding)."""
     return dataclasses.replace(options_from_args(args),
                                baseline=getattr(args, "baseline", None),
-                               accept_all=bool(getattr(args, "write_baseline", None)))
+                               accept_all=bool(getattr(args, "write_baseline", None)),
+                               config_baseline=True)
 
 
 def _board_auditor(args: argparse.Namespace) -> AuditFn:
@@ -65,7 +68,23 @@ def auditor_for(args: argparse.Namespace) -> AuditFn:
     return AUDITOR_FACTORY(args)
 
 
-def shown_as(report: Report, label: str) -> Report:
+def shown_as(report: Report, label: str, copy: Path | None = None,
+             config_label: str = "{}") -> Report:
     """``report`` with its board path replaced by ``label`` (e.g. ``HEAD~1:a.kicad_pcb``),
-    so no temporary path leaks into any output."""
-    return dataclasses.replace(report, info=dataclasses.replace(report.info, board_path=label))
+    so no temporary path leaks into any output.
+
+    ``copy``: the temporary copy the report was made from
+    (:func:`auditor.gitrev.board_at`); a configuration read from beside it is
+    then shown by its path in the repository, formatted into ``config_label``
+    (e.g. ``"HEAD~1:{}"``).
+    """
+    info = dataclasses.replace(report.info, board_path=label)
+    if copy is not None and info.config_path:
+        from auditor.gitrev import mirror_root  # only copies at a revision need it
+
+        mirror = mirror_root(copy)
+        config = Path(info.config_path)
+        if config.is_absolute() and config.is_relative_to(mirror):
+            shown = config.relative_to(mirror).as_posix()
+            info = dataclasses.replace(info, config_path=config_label.format(shown))
+    return dataclasses.replace(report, info=info)

@@ -54,9 +54,11 @@ def run(args: argparse.Namespace) -> int:
         # Show the file's name, not where this venv put it, so the demo's
         # output is the same on every machine.
         report = shown_as(run_audit(str(board), options), board.name)
+        report = dataclasses.replace(report, info=dataclasses.replace(
+            report.info, config_path=demo_config_path().name))
     finally:
         progress.close()
-    code = emit(report, args)
+    code = emit(report, args, demo=True)
     if code == EXIT_FINDINGS:
         if args.format == "text" and not args.output:
             _closing("This is the demo: the problems above were planted on purpose. "

@@ -18,6 +18,7 @@ from pathlib import Path
 
 from auditor.cli.audit_runner import AuditFn, auditor_for, shown_as
 from auditor.cli.colour import COLOUR_CHOICES, use_colour
+from auditor.cli.confirm import confirm_written
 from auditor.cli.options import add_fail_on, add_profile
 from auditor.cli.outputs import (
     refuse_inputs,
@@ -27,8 +28,10 @@ from auditor.cli.outputs import (
 )
 from auditor.decide.diff import compare_reports
 from auditor.decide.records import Report
+from auditor.decide.summary import summarize_diff
 from auditor.errors import UsageError
 from auditor.report.diff_render import DIFF_FORMATS, render_diff
+from auditor.report.summary_line import render_summary
 
 
 def _fraction(text: str) -> float:
@@ -64,11 +67,12 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
 
 
 @contextlib.contextmanager
-def _side(spec: str) -> Iterator[tuple[str, str]]:
-    """Yield ``(path to audit, label)`` for ``FILE`` or ``REV:path`` (the path
-    relative to the current folder, as for the file case)."""
+def _side(spec: str) -> Iterator[tuple[str, str, Path | None]]:
+    """Yield ``(path to audit, label, temporary copy or None)`` for ``FILE``
+    or ``REV:path`` (the path relative to the current folder, as for the
+    file case)."""
     if Path(spec).is_file():
-        yield spec, spec
+        yield spec, spec, None
         return
     rev, sep, path = spec.partition(":")
     if not sep or not rev or not path:
@@ -76,12 +80,13 @@ def _side(spec: str) -> Iterator[tuple[str, str]]:
     from auditor.gitrev import board_at
 
     with board_at(path, rev) as copy:
-        yield str(copy), spec
+        yield str(copy), spec, copy
 
 
 def _audited(audit: AuditFn, spec: str) -> Report:
-    with _side(spec) as (path, label):
-        return shown_as(audit(path), label)
+    with _side(spec) as (path, label, copy):
+        rev = label.partition(":")[0] if copy is not None else ""
+        return shown_as(audit(path), label, copy, f"{rev}:{{}}")
 
 
 def run(args: argparse.Namespace) -> int:
@@ -95,11 +100,16 @@ def run(args: argparse.Namespace) -> int:
     audit = auditor_for(args)
     diff = compare_reports(_audited(audit, args.old), _audited(audit, args.new),
                            args.max_ratio_loss)
+    summary = summarize_diff(diff)
     if args.output:
         buffer = io.StringIO()
         render_diff(diff, args.format, buffer)
         write_output("--output", args.output, buffer.getvalue(), boards)
+        confirm_written(args.output)
+        written_to_stdout(lambda: render_summary(summary, sys.stdout))
     else:
         colour = use_colour(args.color, sys.stdout, os.environ) and args.format == "text"
         written_to_stdout(lambda: render_diff(diff, args.format, sys.stdout, colour))
-    return diff.exit_code
+        if args.format != "text":  # stdout holds the document: the verdict goes aside
+            render_summary(summary, sys.stderr)
+    return summary.exit_code

@@ -6,6 +6,11 @@ every staged ``.kicad_pcb`` file (``git show :path`` into a temporary copy,
 with its staged project and configuration files), prints the report and
 fails the commit on exit code 1 or 2. Given file names instead (as the
 pre-commit framework passes them), ``hook run`` audits those files.
+
+On a board adopted with findings, ``--baseline FILE`` (or the configuration's
+``baseline`` key) accepts the recorded ones, and ``--new-since REV`` fails only
+on findings the board did not have at ``REV``. A pass prints one line per
+board; a fail, the findings that fail it (``--full`` for the whole report).
 """
 
 from __future__ import annotations
@@ -25,7 +30,8 @@ from auditor.cli.options import add_fail_on, add_profile
 from auditor.cli.outputs import replace_text, written_to_stdout
 from auditor.decide.records import Report
 from auditor.errors import PadauditError, UsageError
-from auditor.gitrev import board_at, repo_root, run_git, staged_boards
+from auditor.gitrev import blob, board_at, repo_root, run_git, staged_boards
+from auditor.report.brief import render_brief
 from auditor.report.render import render
 
 #: Exit code of a board that could not be audited (as main's bad input).
@@ -51,19 +57,38 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
     install.add_argument("--force", action="store_true",
                          help="replace a pre-commit hook that padaudit did not write")
     add_fail_on(install, "severity that blocks a commit (default: the configuration's)")
+    add_gate_options(install, "baked into the hook")
     check = actions.add_parser("run", help="audit staged boards (or the given files)")
     check.add_argument("files", nargs="*", metavar="FILE",
                        help="boards to audit as they are on disk (default: staged boards)")
     add_fail_on(check, "lowest severity that fails (default: the configuration's)")
     add_profile(check)
     check.add_argument("--config", metavar="FILE", help="configuration file to use")
+    add_gate_options(check)
+    check.add_argument("--full", action="store_true",
+                       help="print the whole report of every board, not only what fails")
 
 
-def hook_script(python: str, fail_on: str | None = None) -> str:
+def add_gate_options(parser: argparse.ArgumentParser, note: str = "") -> None:
+    """``--baseline`` and ``--new-since``: gating a board adopted with findings."""
+    suffix = f" ({note})" if note else ""
+    parser.add_argument("--baseline", metavar="FILE",
+                        help="accept the findings recorded in FILE (written by 'audit "
+                             "--write-baseline'); only new ones fail. Default: the "
+                             "configuration's baseline key" + suffix)
+    parser.add_argument("--new-since", metavar="REV",
+                        help="fail only on findings the board did not have at git revision "
+                             "REV (e.g. origin/main); a board new since REV counts in full"
+                             + suffix)
+
+
+def hook_script(python: str, fail_on: str | None = None, baseline: str | None = None,
+                new_since: str | None = None) -> str:
     """The pre-commit hook's text: our interpreter if it still exists, else
     whatever ``padaudit`` is on PATH."""
     py = shlex.quote(python)
-    flags = f" --fail-on {fail_on}" if fail_on else ""
+    flags = "".join(f" {flag} {shlex.quote(value)}" for flag, value in (
+        ("--fail-on", fail_on), ("--baseline", baseline), ("--new-since", new_since)) if value)
     return (
         "#!/bin/sh\n"
         f"{HOOK_MARKER} (written by 'padaudit hook install'; delete this file to remove it)\n"
@@ -90,7 +115,8 @@ def _foreign(target: Path) -> bool:
     return target.exists() and HOOK_MARKER not in target.read_text(errors="replace")
 
 
-def install(cwd: Path, force: bool, fail_on: str | None = None) -> Path:
+def install(cwd: Path, force: bool, fail_on: str | None = None, baseline: str | None = None,
+            new_since: str | None = None) -> Path:
     """Write the hook; refuse to replace a foreign one unless ``force``, and
     then keep it as ``pre-commit.padaudit-backup`` (a symlink is moved
     itself; what it points at is never written)."""
@@ -103,9 +129,63 @@ def install(cwd: Path, force: bool, fail_on: str | None = None) -> Path:
     target.parent.mkdir(parents=True, exist_ok=True)
     if foreign:
         os.replace(target, target.with_name(BACKUP_NAME))
-    replace_text(target, hook_script(sys.executable, fail_on))
+    replace_text(target, hook_script(sys.executable, fail_on, baseline, new_since))
     target.chmod(target.stat().st_mode | stat.S_IXUSR | stat.S_IXGRP | stat.S_IXOTH)
     return target
+
+
+def _gated(report: Report, args: argparse.Namespace, audit: AuditFn, board: Path,
+           copy: Path | None = None) -> Report:
+    """The report with the gate's baseline and ``--new-since`` applied.
+
+    ``board``: the board in the working tree (for its revision); ``copy``:
+    the staged copy that was audited, whose configuration names the
+    baseline (its staged version is fetched beside it).
+    """
+    # Imported when a board is audited: a commit without boards must stay
+    # instant, and the audit entry pulls in the solver.
+    from auditor.audit import AuditOptions, with_baseline
+    from auditor.decide.baseline import accepted_since
+
+    baseline = args.baseline or _configured(copy or board, args.config, copy)
+    if baseline:
+        report = with_baseline(report, AuditOptions(baseline=baseline))
+    if args.new_since:
+        earlier = _earlier(audit, board, args.new_since)
+        if earlier is not None:
+            report = accepted_since(report, earlier)
+    return report
+
+
+def _configured(board: Path, config: str | None, copy: Path | None) -> str:
+    """The configuration's baseline; for a staged copy, its staged version
+    (or the working tree's, when it is not in the index)."""
+    from auditor.audit import configured_baseline  # late: see _gated
+
+    path = configured_baseline(board, config)
+    if not path or copy is None or Path(path).exists():
+        return path
+    from auditor.gitrev import fetch_companion, mirror_root
+
+    root = repo_root(Path.cwd())
+    if fetch_companion(root, copy, Path(path), ""):
+        return path
+    return str(root / Path(path).relative_to(mirror_root(copy)))
+
+
+def _earlier(audit: AuditFn, board: Path, rev: str) -> Report | None:
+    """The board audited at ``rev``; ``None`` when it did not exist then."""
+    from auditor.gitrev import check_revision, locate, revision_exists
+
+    check_revision(rev)
+    where = locate(board)
+    if not revision_exists(where.root, rev):
+        raise UsageError(f"--new-since {rev}: no such revision in the repository at "
+                         f"{where.root}")
+    if blob(where.root, rev, where.path) is None:
+        return None
+    with board_at(board, rev) as copy:
+        return audit(str(copy))
 
 
 def _audit_staged(args: argparse.Namespace, cwd: Path) -> list[tuple[str, int]]:
@@ -116,8 +196,10 @@ def _audit_staged(args: argparse.Namespace, cwd: Path) -> list[tuple[str, int]]:
     audit = auditor_for(args)
 
     def staged(path: PurePosixPath) -> int:
-        with board_at(root / Path(*path.parts), "") as copy:
-            return _show(shown_as(audit(str(copy)), f"{path} (staged)"))
+        board = root / Path(*path.parts)
+        with board_at(board, "") as copy:
+            report = shown_as(audit(str(copy)), f"{path} (staged)", copy, "{} (staged)")
+            return _show(_gated(report, args, audit, board, copy), args.full)
 
     return [_guarded(str(path), functools.partial(staged, path)) for path in boards]
 
@@ -132,26 +214,33 @@ def _guarded(name: str, check: Callable[[], int]) -> tuple[str, int]:
         return name, EXIT_BAD_INPUT
 
 
-def _audit_file(audit: AuditFn, path: str) -> int:
-    return _show(audit(path))
+def _audit_file(audit: AuditFn, path: str, args: argparse.Namespace) -> int:
+    return _show(_gated(audit(path), args, audit, Path(path)), args.full)
 
 
-def _show(report: Report) -> int:
-    colour = use_colour("auto", sys.stdout, os.environ)
-    written_to_stdout(lambda: render(report, "text", sys.stdout, colour))
-    return report.exit_code
+def _show(report: Report, full: bool) -> int:
+    from auditor.decide.summary import summarize  # late: see _gated
+
+    summary = summarize(report)
+    if full:
+        colour = use_colour("auto", sys.stdout, os.environ)
+        written_to_stdout(lambda: render(report, "text", sys.stdout, colour, closing=False))
+        written_to_stdout(lambda: sys.stdout.write("\n"))
+    written_to_stdout(lambda: render_brief(report, summary, sys.stdout))
+    return summary.exit_code
 
 
 def run(args: argparse.Namespace) -> int:
     """Run ``padaudit hook install`` or ``padaudit hook run``."""
     cwd = Path.cwd()
     if args.hook_action == "install":
-        target = install(cwd, args.force, args.fail_on)
+        target = install(cwd, args.force, args.fail_on, args.baseline, args.new_since)
         sys.stdout.write(f"padaudit: pre-commit hook written to {target}\n")
         return 0
     if args.files:
         audit = auditor_for(args)
-        results = [_guarded(f, functools.partial(_audit_file, audit, f)) for f in args.files]
+        results = [_guarded(f, functools.partial(_audit_file, audit, f, args))
+                   for f in args.files]
     else:
         results = _audit_staged(args, cwd)
     if not results:

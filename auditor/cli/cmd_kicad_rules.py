@@ -17,6 +17,7 @@ import sys
 from pathlib import Path
 from typing import Any
 
+from auditor.cli.confirm import confirm_written
 from auditor.errors import UsageError
 from auditor.report.kicad_dru_build import DruExport
 
@@ -77,7 +78,8 @@ def run(args: argparse.Namespace) -> int:
                          "to print rules to add to it") from None
     except OSError as exc:
         raise UsageError(f"{target}: cannot write: {exc.strerror or exc}") from None
-    sys.stderr.write(f"padaudit: wrote {len(export.rules)} rule(s) to {target}\n")
+    count = len(export.rules)
+    confirm_written(str(target), f"{count} rule{'' if count == 1 else 's'}")
     return 0
 
 

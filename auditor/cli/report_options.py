@@ -13,10 +13,11 @@ import os
 import sys
 from collections.abc import Mapping
 from pathlib import Path
-from typing import TextIO
+from typing import TYPE_CHECKING, TextIO
 
 from auditor.cli.audit_runner import AuditFn, auditor_for, shown_as
 from auditor.cli.colour import COLOUR_CHOICES, use_colour
+from auditor.cli.confirm import confirm_written
 from auditor.cli.outputs import (
     require_value,
     stdout_may_close,
@@ -24,8 +25,13 @@ from auditor.cli.outputs import (
     written_to_stdout,
 )
 from auditor.decide.records import Report
+from auditor.decide.summary import summarize
 from auditor.report.render import FORMATS, render
+from auditor.report.summary_line import render_summary
 from auditor.report.text import ORDERS
+
+if TYPE_CHECKING:  # the comparison is loaded only for --against
+    from auditor.decide.diff import ReportDiff
 
 
 def add_report_options(parser: argparse.ArgumentParser) -> None:
@@ -42,7 +48,8 @@ def add_report_options(parser: argparse.ArgumentParser) -> None:
     group.add_argument("--color", "--colour", dest="color", choices=COLOUR_CHOICES,
                        default="auto", help="colour in the terminal report (default: auto)")
     group.add_argument("-q", "--quiet", action="store_true",
-                       help="no progress bar, and no summary line when the report goes to --output")
+                       help="no progress bar, no 'wrote FILE' lines, and no verdict line "
+                            "unless the text report is on the terminal")
     group.add_argument("--order", choices=ORDERS, default="weakest",
                        help="electrode table order: weakest first or by rank")
     gate = parser.add_argument_group("gate")
@@ -67,14 +74,25 @@ def _check_values(args: argparse.Namespace) -> None:
         require_value("--" + option.replace("_", "-"), getattr(args, option, None))
 
 
-def _write_baseline(report: Report, args: argparse.Namespace) -> None:
+def _write_baseline(report: Report, args: argparse.Namespace, quiet: bool) -> None:
     """Record the report's findings (the audit accepted them all already)."""
     # Imported here, as the picture and the diff below: most runs use none
     # of them, and every import costs start-up time.
     from auditor.decide.baseline import Baseline, dumps
 
-    write_output("--write-baseline", args.write_baseline, dumps(Baseline.of(report.findings)),
+    baseline = Baseline.of(report.findings)
+    write_output("--write-baseline", args.write_baseline, dumps(baseline),
                  _inputs(report, args))
+    entries = len(baseline.counts)
+    confirm_written(args.write_baseline, f"{entries} entr{'y' if entries == 1 else 'ies'}",
+                    quiet=quiet)
+
+
+def _write_svg(report: Report, args: argparse.Namespace, quiet: bool) -> None:
+    from auditor.report.svg import to_svg
+
+    write_output("--svg", args.svg, to_svg(_with_board(report)), _inputs(report, args))
+    confirm_written(args.svg, quiet=quiet)
 
 
 def _with_board(report: Report) -> Report:
@@ -87,26 +105,40 @@ def _with_board(report: Report) -> Report:
     return dataclasses.replace(report, board=read_board(report.info.board_path))
 
 
-def _against(report: Report, args: argparse.Namespace, audit: AuditFn | None,
-             stdout: TextIO, colour: bool) -> int:
+def _against(report: Report, args: argparse.Namespace, audit: AuditFn | None) -> ReportDiff:
     from auditor.decide.diff import compare_reports
     from auditor.gitrev import board_at, locate
-    from auditor.report.diff_render import render_diff
 
     audit = audit or auditor_for(args)
     board = report.info.board_path
     with board_at(board, args.against) as old_copy:
-        old = shown_as(audit(str(old_copy)), f"{args.against}:{locate(board).path}")
-    diff = compare_reports(old, report)
-    with stdout_may_close():
-        stdout.write("\n")
-        render_diff(diff, "text", stdout, colour)
-    return diff.exit_code
+        old = shown_as(audit(str(old_copy)), f"{args.against}:{locate(board).path}",
+                       old_copy, f"{args.against}:{{}}")
+    return compare_reports(old, report)
+
+
+def _write_outputs(report: Report, args: argparse.Namespace) -> None:
+    """The files asked for: baseline, picture, report; each confirmed on stderr."""
+    quiet = bool(getattr(args, "quiet", False))
+    if getattr(args, "write_baseline", None):
+        _write_baseline(report, args, quiet)
+    if getattr(args, "svg", None):
+        _write_svg(report, args, quiet)
+    if getattr(args, "output", None):
+        import io
+
+        buffer = io.StringIO()
+        render(report, getattr(args, "format", "text"), buffer, False,
+               order=getattr(args, "order", "weakest"))
+        write_output("--output", args.output, buffer.getvalue(), _inputs(report, args))
+        confirm_written(args.output, quiet=quiet)
 
 
 def emit(report: Report, args: argparse.Namespace, *, audit: AuditFn | None = None,
-         stdout: TextIO | None = None, env: Mapping[str, str] | None = None) -> int:
-    """Write the baseline file and every requested output, return the exit code.
+         stdout: TextIO | None = None, env: Mapping[str, str] | None = None,
+         demo: bool = False) -> int:
+    """Write the baseline file and every requested output, end with the
+    run's one verdict line, and return the exit code that line states.
 
     Parameters
     ----------
@@ -117,48 +149,49 @@ def emit(report: Report, args: argparse.Namespace, *, audit: AuditFn | None = No
     audit:
         For ``--against``: how to audit the old board (default: the audit
         with the same options).
+    demo:
+        The bundled demo: the verdict line says the demo exits 0 (the
+        caller returns that) and what an audit would return.
+
+    Notes
+    -----
+    The verdict line goes to stdout after a text report there, else to stdout
+    when the report went to ``--output``, else (a machine format on stdout)
+    to stderr; ``-q`` leaves it out except after a text report on stdout.
     """
     out = stdout or sys.stdout
     environment = os.environ if env is None else env
-    fmt, order = getattr(args, "format", "text"), getattr(args, "order", "weakest")
+    fmt = getattr(args, "format", "text")
     colour = use_colour(getattr(args, "color", "auto"), out, environment)
     _check_values(args)
-    if getattr(args, "against", None):
+    against = getattr(args, "against", None)
+    if against:
         from auditor.gitrev import check_board_at
 
-        check_board_at(report.info.board_path, args.against)
-    if getattr(args, "write_baseline", None):
-        _write_baseline(report, args)
-    if getattr(args, "svg", None):
-        from auditor.report.svg import to_svg
+        check_board_at(report.info.board_path, against)
+    _write_outputs(report, args)
+    on_stdout = not getattr(args, "output", None)
+    text_here = on_stdout and fmt == "text"
+    if on_stdout:
+        written_to_stdout(lambda: render(report, fmt, out, colour and text_here,
+                                         order=getattr(args, "order", "weakest"),
+                                         closing=False))
+    diff = _against(report, args, audit) if against else None
+    aside = out if fmt == "text" else sys.stderr
+    if diff is not None:
+        from auditor.report.diff_render import render_diff
 
-        write_output("--svg", args.svg, to_svg(_with_board(report)), _inputs(report, args))
-    if getattr(args, "output", None):
-        import io
-
-        buffer = io.StringIO()
-        render(report, fmt, buffer, False, order=order)
-        write_output("--output", args.output, buffer.getvalue(), _inputs(report, args))
-        if not getattr(args, "quiet", False):
-            written_to_stdout(lambda: out.write(summary_line(report, args.output) + "\n"))
-    else:
-        written_to_stdout(lambda: render(report, fmt, out, colour and fmt == "text",
-                                         order=order))
-    code = report.exit_code
-    if getattr(args, "against", None):
-        code = max(code, _against(report, args, audit, out if fmt == "text" else sys.stderr,
-                                  colour))
-    return code
-
-
-def summary_line(report: Report, written_to: str) -> str:
-    """One line for the terminal when the report went to a file."""
-    failing = len(report.failing)
-    state = "FAIL" if report.exit_code else "PASS"
-    if report.read_warnings:
-        state += f" (incomplete: {len(report.read_warnings)} item(s) skipped while reading)"
-    return (f"padaudit: {state}: {len(report.sensors)} electrode(s), "
-            f"{len(report.findings)} finding(s), {failing} failing; report in {written_to}")
+        with stdout_may_close():
+            aside.write("\n")
+            render_diff(diff, "text", aside, colour and aside is out, closing=False)
+    summary = dataclasses.replace(summarize(report, diff), demo=demo)
+    with stdout_may_close():
+        if text_here:
+            out.write("\n")
+            render_summary(summary, out, colour)
+        elif not getattr(args, "quiet", False):
+            render_summary(summary, out if not on_stdout else sys.stderr)
+    return summary.exit_code
 
 
-__all__ = ["add_report_options", "emit", "summary_line"]
+__all__ = ["add_report_options", "emit"]

@@ -42,8 +42,8 @@ from auditor.sensors.selection import selection_from_mapping
 
 CONFIG_NAMES = ("padaudit.toml", "pyproject.toml")
 
-VALID_KEYS = ("air_gap_mm", "controller", "fail_on", "noisy_nets", "overlay", "power",
-              "profile", "sensors", "severity", "thresholds", "touch_side", "waivers")
+VALID_KEYS = ("air_gap_mm", "baseline", "controller", "fail_on", "noisy_nets", "overlay",
+              "power", "profile", "sensors", "severity", "thresholds", "touch_side", "waivers")
 
 
 def find_config(start: str | Path) -> Path | None:
@@ -166,6 +166,14 @@ def _thresholds(value: Any, where: ConfigText) -> dict[str, Any]:
     return dict(sorted(value.items()))
 
 
+def _baseline(value: Any, where: ConfigText) -> str:
+    """The baseline file, relative to the configuration file's folder."""
+    if not isinstance(value, str) or not value.strip():
+        raise where.error("baseline must be the path of a baseline file (written by "
+                          "--write-baseline), relative to this file", "baseline")
+    return str(where.path.parent / value.strip())
+
+
 def _fail_on(value: Any, where: ConfigText) -> Severity:
     return Severity.parse(choice(value, SEVERITY_NAMES, "fail_on", where))
 
@@ -182,6 +190,7 @@ _READERS: dict[str, Callable[[Any, ConfigText], Any]] = {
     "severity": _severity,
     "waivers": waivers_from,
     "fail_on": _fail_on,
+    "baseline": _baseline,
     "thresholds": _thresholds,
 }
 

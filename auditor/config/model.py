@@ -84,6 +84,9 @@ class Config:
     waivers: tuple[Waiver, ...] = ()
     fail_on: Severity = Severity.ERROR
     thresholds: Mapping[str, ThresholdValue] = field(default_factory=dict)
+    #: Baseline file whose findings are accepted (``baseline = "path"``,
+    #: resolved against the configuration file's folder); ``""`` for none.
+    baseline: str = ""
 
     @property
     def overlay_thickness_mm(self) -> float:

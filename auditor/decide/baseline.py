@@ -142,3 +142,15 @@ def apply_baseline(report: Report, baseline: Baseline) -> Report:
                   for k in stale_keys)
     return dataclasses.replace(report, findings=marked,
                                stale_baseline=report.stale_baseline + stale)
+
+
+def accepted_since(report: Report, earlier: Report) -> Report:
+    """``report`` with the findings ``earlier`` also had marked as accepted,
+    so only findings new since then can fail (``hook run --new-since REV``).
+
+    Matching is that of a baseline written from ``earlier`` (by key, counted:
+    a second finding with the same key is still new); what ``earlier`` had
+    and is now fixed is not listed as stale.
+    """
+    marked, _stale = mark_baseline(report.findings, dict(Baseline.of(earlier.findings).counts))
+    return dataclasses.replace(report, findings=marked)

@@ -82,6 +82,9 @@ class RunInfo:
     #: fraction (profile threshold ``max_ratio_loss``; 0.2 is common practice,
     #: no source). Read by ``padaudit diff`` and ``audit --against``.
     max_ratio_loss: float = 0.2
+    #: The configuration file read, as shown (relative to the working folder
+    #: when inside it); ``""`` when none was found.
+    config_path: str = ""
 
 
 @dataclass(frozen=True)
@@ -97,6 +100,9 @@ class Report:
     stale_baseline: tuple[str, ...] = ()
     rule_errors: tuple[tuple[str, str], ...] = ()  # (rule id, error) for crashed rules
     cautions: tuple[str, ...] = ()  # safety notes (mains etc.)
+    #: (rule id, why) for rules that did not run: switched off by the profile
+    #: or configuration, or needing the 3-D solve in a quick run.
+    skipped_rules: tuple[tuple[str, str], ...] = ()
     #: The board itself, for the picture (``--svg``); not part of equality.
     board: Board | None = field(default=None, compare=False, repr=False)
     #: Precise-mode extras (coupling table, slider scans) when ``--precise`` ran.

@@ -64,6 +64,10 @@ class Pad:
     mask_layers: tuple[str, ...] = ()
     paste_layers: tuple[str, ...] = ()
     pin_function: str = ""
+    #: Where the item starts in the board file (1-based line and column), for
+    #: annotations that point at it; ``None`` when not read from a file.
+    source_line: int | None = None
+    source_column: int | None = None
 
     @property
     def copper_layers(self) -> tuple[str, ...]:
@@ -112,6 +116,10 @@ class Footprint:
     properties: tuple[tuple[str, str], ...] = ()
     pads: tuple[Pad, ...] = ()
     graphics: tuple[CopperShape, ...] = ()
+    #: Where the item starts in the board file (1-based line and column), for
+    #: annotations that point at it; ``None`` when not read from a file.
+    source_line: int | None = None
+    source_column: int | None = None
 
     def property(self, name: str) -> str | None:
         """The value of a footprint property by case-insensitive name."""
@@ -133,6 +141,10 @@ class Track:
     length_mm: float
     geometry: BaseGeometry
     mid: Point | None = None  # set for arcs
+    #: Where the item starts in the board file (1-based line and column), for
+    #: annotations that point at it; ``None`` when not read from a file.
+    source_line: int | None = None
+    source_column: int | None = None
 
 
 @dataclass(frozen=True, slots=True)
@@ -146,6 +158,10 @@ class Via:
     layers: tuple[str, ...]
     net: str
     kind: str = "through"  # through, blind, buried, micro
+    #: Where the item starts in the board file (1-based line and column), for
+    #: annotations that point at it; ``None`` when not read from a file.
+    source_line: int | None = None
+    source_column: int | None = None
 
 
 @dataclass(frozen=True)
@@ -194,6 +210,10 @@ class Zone:
     hatch: HatchSettings | None = None
     min_thickness_mm: float = 0.0
     footprint_uid: str = ""
+    #: Where the item starts in the board file (1-based line and column), for
+    #: annotations that point at it; ``None`` when not read from a file.
+    source_line: int | None = None
+    source_column: int | None = None
 
     def fill_on(self, layer: str) -> BaseGeometry | None:
         """Filled copper on ``layer``, or ``None``."""

@@ -64,6 +64,11 @@ class ReadContext:
             line, col = self.locator.of_token(node.token)
         self.warnings.append(ReadWarning(code, message, line, col))
 
+    def place(self, node: Node) -> tuple[int, int]:
+        """1-based line and column where ``node`` starts in the file (kept on
+        the board's items, so a report can point at them)."""
+        return self.locator.of_token(node.token)
+
     def skipped(self, where: str, node: Node) -> None:
         """Note an unknown token; reported once per kind by :meth:`finish`."""
         self._skipped.setdefault((where, node.head or "?"), []).append(node.token)

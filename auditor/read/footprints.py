@@ -66,6 +66,7 @@ def read_footprint(node: Node, ctx: ReadContext, parts: BoardParts) -> None:
     if at is None:
         raise ctx.error(node, f"'{node.head}' has no (at …)")
     fx, fy = ctx.xy(at)
+    line, column = ctx.place(node)  # before its pads: items are located in file order
     placement_at = (fx, fy, ctx.num(at, 3, 0.0))
     ref, value, props = _texts(node)
     uid = parts.unique_uid(ref)
@@ -85,7 +86,8 @@ def read_footprint(node: Node, ctx: ReadContext, parts: BoardParts) -> None:
         uid=uid, ref=ref, value=value, lib_id=lib_id, x_mm=fx, y_mm=fy,
         angle_deg=placement_at[2], side="back" if _is_back(layer, ctx) else "front",
         attributes=tuple(atoms(attr)) if attr is not None else (),
-        properties=tuple(props), pads=tuple(frame.pads), graphics=tuple(frame.graphics)))
+        properties=tuple(props), pads=tuple(frame.pads), graphics=tuple(frame.graphics),
+        source_line=line, source_column=column))
 
 
 def _is_back(layer: str, ctx: ReadContext) -> bool:

@@ -183,7 +183,13 @@ def read_pad(node: Node, ctx: ReadContext, fp_uid: str, ref: str,
         mask_layers=tuple(x for x in layers if x.endswith(".Mask")),
         paste_layers=tuple(x for x in layers if x.endswith(".Paste")),
         pin_function=text_of(find(node, "pinfunction")),
+        **_source(node, ctx),
     )
+
+
+def _source(node: Node, ctx: ReadContext) -> dict[str, int]:
+    line, column = ctx.place(node)
+    return {"source_line": line, "source_column": column}
 
 
 def _drill(node: Node, ctx: ReadContext,

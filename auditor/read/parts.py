@@ -27,6 +27,7 @@ class BoardParts:
     #: straight tracks waiting for their geometry: 5 numbers each, and names
     segment_numbers: array[float] = field(default_factory=lambda: array("d"))
     segment_names: list[tuple[str, str]] = field(default_factory=list)
+    segment_places: list[tuple[int, int]] = field(default_factory=list)  # line, column
     vias: list[Via] = field(default_factory=list)
     zones: list[Zone] = field(default_factory=list)
     graphics: list[CopperShape] = field(default_factory=list)

@@ -64,9 +64,13 @@ class Locator:
 
     def __init__(self, text: str) -> None:
         self._text = text
-        self._lines: list[int] | None = None
         self._run_tokens: list[int] = []
         self._run_starts: list[int] = []
+        #: (run, token, offset) of the last token found: items are located in
+        #: file order, so the next search resumes there instead of re-scanning
+        #: the run (keeps locating every item linear in the file's size).
+        self._cursor: tuple[int, int, int] = (-1, 0, 0)
+        self._line_cursor: tuple[int, int] = (0, 1)  # (offset, its line)
 
     def add_run(self, first_token: int, start: int) -> None:
         """Record that token ``first_token`` is the first at or after ``start``."""
@@ -77,19 +81,26 @@ class Locator:
         """Character offset of token ``index`` (clamped to the last token)."""
         k = bisect_right(self._run_tokens, index) - 1
         first, start = (self._run_tokens[k], self._run_starts[k]) if k >= 0 else (0, 0)
-        last = start
+        run, token, offset = self._cursor
+        if run == k and first <= token <= index:
+            first, start = token, offset
+        last, count = start, first
         for count, match in enumerate(_TOKEN.finditer(self._text, start), first):
             last = match.start()
             if count >= index:
                 break
+        self._cursor = (k, count, last)
         return last
 
     def line_column(self, offset: int) -> tuple[int, int]:
         """1-based line and column of a character offset."""
-        if self._lines is None:
-            self._lines = [0] + [m.end() for m in re.finditer("\n", self._text)]
-        line = bisect_right(self._lines, offset)
-        return line, offset - self._lines[line - 1] + 1
+        line_offset, line = self._line_cursor
+        if offset >= line_offset:  # items come in file order: count on from the last one
+            line += self._text.count("\n", line_offset, offset)
+        else:
+            line = self._text.count("\n", 0, offset) + 1
+        self._line_cursor = (offset, line)
+        return line, offset - (self._text.rfind("\n", 0, offset) + 1) + 1
 
     def of_token(self, index: int) -> tuple[int, int]:
         """1-based line and column of token ``index``."""

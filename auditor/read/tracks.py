@@ -47,6 +47,7 @@ def read_segment(node: Node, ctx: ReadContext, parts: BoardParts) -> None:
     # until then they wait as compact numbers (peak memory)
     parts.segment_numbers.extend((x0, y0, x1, y1, width))
     parts.segment_names.append((layer, ctx.canonical(ctx.net_of(find(node, "net")))))
+    parts.segment_places.append(ctx.place(node))
     parts.tracks.append(None)
 
 
@@ -66,12 +67,16 @@ def finish_segments(parts: BoardParts) -> None:
         batch = rows[first:first + _BATCH]
         shapes[batch] = geo.stadiums(numbers[batch, :4], numbers[batch, 4])
     slots = (i for i, track in enumerate(parts.tracks) if track is None)
+    places = parts.segment_places
     for k, (index, (layer, net)) in enumerate(zip(slots, parts.segment_names, strict=False)):
         x0, y0, x1, y1, width = (float(v) for v in numbers[k])
         geometry = shapes[k] if wide[k] else geo.stroke(np.array([(x0, y0), (x1, y1)]), 0.0)
+        line, column = places[k] if k < len(places) else (None, None)
         parts.tracks[index] = Track(Point(x0, y0), Point(x1, y1), width, layer, net,
-                                    math.hypot(x1 - x0, y1 - y0), geometry)
+                                    math.hypot(x1 - x0, y1 - y0), geometry,
+                                    source_line=line, source_column=column)
     parts.segment_names.clear()
+    parts.segment_places.clear()
     del numbers
     parts.segment_numbers = array("d")
 
@@ -96,8 +101,10 @@ def read_arc(node: Node, ctx: ReadContext, parts: BoardParts) -> None:
         length = math.dist(start, end)
     else:
         pts, length = arc.points(), arc.length_mm
+    line, column = ctx.place(node)
     parts.tracks.append(Track(Point(*start), Point(*end), width, layer, net, length,
-                              geo.stroke(pts, width, geo.TRACK_QUAD_SEGS), mid=Point(*mid)))
+                              geo.stroke(pts, width, geo.TRACK_QUAD_SEGS), mid=Point(*mid),
+                              source_line=line, source_column=column))
 
 
 def read_via(node: Node, ctx: ReadContext, parts: BoardParts) -> None:
@@ -117,5 +124,7 @@ def read_via(node: Node, ctx: ReadContext, parts: BoardParts) -> None:
         span = stack[i:j + 1]
         if kind == "blind" and i > 0 and j < len(stack) - 1:
             kind = "buried"  # ≤ 9 writes "blind" for both (§9)
+    line, column = ctx.place(node)
     parts.vias.append(Via(x, y, ctx.size_of(node, "size"), ctx.value_of(node, "drill"),
-                          tuple(span), ctx.net_of(find(node, "net")), kind))
+                          tuple(span), ctx.net_of(find(node, "net")), kind,
+                          source_line=line, source_column=column))

@@ -46,12 +46,14 @@ def read_zone(node: Node, ctx: ReadContext, fp_uid: str = "") -> Zone | None:
     if grown:
         ctx.warn("zone-stroked-fill", "legacy stroked zone fill grown by min_thickness/2",
                  node)
+    line, column = ctx.place(node)
     return Zone(
         net=net, layers=layers, outline=_outline(node, ctx), fills=fills, fill=mode,
         name=name, priority=int(ctx.value_of(node, "priority")),
         is_rule_area=is_rule_area, keepouts=_keepouts(keepout),
         hatch=_hatch(fill_node, ctx) if hatched else None,
-        min_thickness_mm=min_thickness, footprint_uid=fp_uid)
+        min_thickness_mm=min_thickness, footprint_uid=fp_uid,
+        source_line=line, source_column=column)
 
 
 def _net(node: Node, ctx: ReadContext) -> str:

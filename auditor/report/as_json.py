@@ -14,6 +14,7 @@ from importlib import resources
 from typing import TYPE_CHECKING, Any, TextIO
 
 from auditor.decide.records import DecidedFinding, Report, SensorResult
+from auditor.decide.summary import count_findings
 from auditor.model.results import PadMetrics
 from auditor.report.rounding import significant
 from auditor.report.suggestion_view import suggestion_record
@@ -146,6 +147,13 @@ def _count_by_severity(findings: Iterable[DecidedFinding]) -> dict[str, int]:
     return counts
 
 
+def _accepted(report: Report) -> dict[str, int]:
+    """The counts the verdict line shows beside the severities."""
+    counts = count_findings(report.findings,
+                            len(report.stale_waivers) + len(report.stale_baseline))
+    return {"waived": counts.waived, "baselined": counts.baselined, "stale": counts.stale}
+
+
 def to_document(report: Report) -> dict[str, Any]:
     """The report as plain JSON-ready data (schema version :data:`SCHEMA_VERSION`)."""
     info = report.info
@@ -156,6 +164,7 @@ def to_document(report: Report) -> dict[str, Any]:
         "tool": {"name": "padaudit", "version": info.tool_version},
         "board": {"path": info.board_path, "format_version": info.board_version},
         "run": {
+            "config_path": info.config_path or None,
             "profile": info.profile, "overlay": info.overlay, "touch_side": info.touch_side,
             "power": info.power, "fail_on": info.fail_on.label,
             "max_ratio_loss": significant(info.max_ratio_loss),
@@ -163,7 +172,7 @@ def to_document(report: Report) -> dict[str, Any]:
         "summary": {
             "exit_code": report.exit_code, "sensors": len(report.sensors),
             "findings": _count_by_severity(report.findings),
-            "failing": len(failing_ids),
+            "failing": len(failing_ids), **_accepted(report),
         },
         "sensors": [_sensor(r, verdicts[r.sensor.name]) for r in report.sensors],
         "findings": [_finding(d, id(d) in failing_ids) for d in report.findings],

@@ -10,8 +10,10 @@ from rich.text import Text
 
 from auditor.decide.diff import PadChange, ReportDiff
 from auditor.decide.records import DecidedFinding
+from auditor.decide.summary import summarize_diff
 from auditor.report.as_json import dumps
 from auditor.report.rounding import significant
+from auditor.report.summary_line import summary_text
 from auditor.report.text_fit import (
     Cell,
     Column,
@@ -86,9 +88,10 @@ def _pad_table(console: Console, diff: ReportDiff) -> None:
 
 
 def render_diff_text(diff: ReportDiff, stream: TextIO, colour: bool,
-                     width: int | None = None) -> None:
+                     width: int | None = None, closing: bool = True) -> None:
     """Write the comparison for people, ``width`` columns wide (``None``:
-    the terminal's width, or 120 when not writing to one)."""
+    the terminal's width, or 120 when not writing to one); ``closing=False``
+    leaves out the verdict line for a caller that prints one for the whole run."""
     if width is None:
         width = stream_width(stream, _FILE_WIDTH)
     buffer = io.StringIO()
@@ -108,15 +111,9 @@ def render_diff_text(diff: ReportDiff, stream: TextIO, colour: bool,
         console.print()
         console.print(Text(f"Not compared ({len(unsolved)}): no field solve on one side or "
                            f"both: {', '.join(unsolved)}", style="yellow"))
-    console.print()
-    if diff.exit_code:
-        parts = [f"{len(diff.losing)} pad(s) lost too much sensitivity"] if diff.losing else []
-        parts += [f"{len(diff.new_failing)} new failing finding(s)"] if diff.new_failing else []
-        console.print(Text("FAIL  " + "; ".join(parts) + " (exit 1)", style="bold red"))
-    else:
-        console.print(Text("PASS  no pad lost more than "
-                           f"{diff.max_ratio_loss * 100:.0f} % and nothing new fails (exit 0)",
-                           style="bold green"))
+    if closing:
+        console.print()
+        console.print(summary_text(summarize_diff(diff)))
     stream.write("".join(line.rstrip() + "\n" for line in buffer.getvalue().splitlines()))
 
 
@@ -168,13 +165,15 @@ def render_diff_markdown(diff: ReportDiff, stream: TextIO) -> None:
     stream.write("\n".join(out) + "\n")
 
 
-def render_diff(diff: ReportDiff, fmt: str, stream: TextIO, colour: bool = False) -> None:
-    """Write ``diff`` in ``fmt`` (one of :data:`DIFF_FORMATS`)."""
+def render_diff(diff: ReportDiff, fmt: str, stream: TextIO, colour: bool = False,
+                closing: bool = True) -> None:
+    """Write ``diff`` in ``fmt`` (one of :data:`DIFF_FORMATS`); ``closing``
+    as for :func:`render_diff_text`."""
     if fmt == "json":
         stream.write(dumps(diff_document(diff)))
     elif fmt == "markdown":
         render_diff_markdown(diff, stream)
     elif fmt == "text":
-        render_diff_text(diff, stream, colour)
+        render_diff_text(diff, stream, colour, closing=closing)
     else:
         raise ValueError(f"unknown format {fmt!r}; choose one of: {', '.join(DIFF_FORMATS)}")

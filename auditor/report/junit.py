@@ -3,7 +3,9 @@
 CI services show these as test results. A test case fails (one ``failure``
 element listing every failing finding) when findings at or above
 ``--fail-on`` concern it and are neither waived nor baselined; a crashed
-rule is an ``error``. Other findings are listed in ``system-out``.
+rule is an ``error``; a rule that did not run (switched off, or judging 3-D
+results in a quick run) is ``skipped`` with the reason. Other findings are
+listed in ``system-out``.
 """
 
 from __future__ import annotations
@@ -23,8 +25,11 @@ def _describe(d: DecidedFinding) -> str:
 
 
 def _case(suite: ET.Element, classname: str, name: str, failing: list[DecidedFinding],
-          others: list[DecidedFinding], error: str = "", note: str = "") -> None:
+          others: list[DecidedFinding], error: str = "", note: str = "",
+          skipped: str = "") -> None:
     case = ET.SubElement(suite, "testcase", {"classname": classname, "name": name, "time": "0"})
+    if skipped and not failing and not error:
+        ET.SubElement(case, "skipped", {"message": skipped})
     if failing:
         first = failing[0].finding
         message = first.message if len(failing) == 1 else f"{len(failing)} failing findings"
@@ -54,16 +59,17 @@ def _suite(root: ET.Element, name: str) -> ET.Element:
     return ET.SubElement(root, "testsuite", {"name": name})
 
 
-def _finish(suite: ET.Element) -> tuple[int, int, int]:
+def _finish(suite: ET.Element) -> tuple[int, int, int, int]:
     cases = suite.findall("testcase")
     failures = sum(1 for c in cases if c.find("failure") is not None)
     errors = sum(1 for c in cases if c.find("error") is not None)
+    skipped = sum(1 for c in cases if c.find("skipped") is not None)
     suite.set("tests", str(len(cases)))
     suite.set("failures", str(failures))
     suite.set("errors", str(errors))
-    suite.set("skipped", "0")
+    suite.set("skipped", str(skipped))
     suite.set("time", "0")
-    return len(cases), failures, errors
+    return len(cases), failures, errors, skipped
 
 
 def to_junit(report: Report) -> ET.Element:
@@ -78,13 +84,15 @@ def to_junit(report: Report) -> ET.Element:
               [d for d in mine if id(d) in failing_ids],
               [d for d in mine if id(d) not in failing_ids], note=_sensor_out(r, verdicts[r.sensor.name]))
     rules = _suite(root, "padaudit.rules")
-    crashed = dict(report.rule_errors)
+    crashed, skipped = dict(report.rule_errors), dict(report.skipped_rules)
     rule_ids = sorted({r.rule_id for r in report.rules}
-                      | {d.finding.rule_id for d in report.findings} | set(crashed))
+                      | {d.finding.rule_id for d in report.findings} | set(crashed)
+                      | set(skipped))
     for rid in rule_ids:
         mine = [d for d in report.findings if d.finding.rule_id == rid]
         _case(rules, "padaudit.rule", rid, [d for d in mine if id(d) in failing_ids],
-              [d for d in mine if id(d) not in failing_ids], crashed.get(rid, ""))
+              [d for d in mine if id(d) not in failing_ids], crashed.get(rid, ""),
+              skipped=skipped.get(rid, ""))
     totals = [_finish(s) for s in (sensors, rules)]
     if report.cautions:
         # Suite-level output comes after the test cases in the JUnit layout.
@@ -93,6 +101,7 @@ def to_junit(report: Report) -> ET.Element:
     root.set("tests", str(sum(t[0] for t in totals)))
     root.set("failures", str(sum(t[1] for t in totals)))
     root.set("errors", str(sum(t[2] for t in totals)))
+    root.set("skipped", str(sum(t[3] for t in totals)))
     return root
 
 

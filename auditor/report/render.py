@@ -14,7 +14,7 @@ from typing import TextIO
 from auditor.decide.records import Report
 from auditor.report.text import ORDERS
 
-Backend = Callable[[Report, TextIO, bool, str], None]
+Backend = Callable[[Report, TextIO, bool, str, bool], None]
 
 #: Format name -> (module, function); a back-end is imported only when used
 #: (a run writes one format; importing all would slow every start).
@@ -34,14 +34,15 @@ def _backend(fmt: str) -> Backend:
     module, name = _BACKENDS[fmt]
     function = getattr(importlib.import_module(module), name)
     if fmt == "text":
-        return lambda r, s, colour, order: function(r, s, colour, order=order)
+        return lambda r, s, colour, order, closing: function(r, s, colour, order=order,
+                                                             closing=closing)
     if fmt in _ORDERED:
-        return lambda r, s, colour, order: function(r, s, order=order)
-    return lambda r, s, colour, order: function(r, s)
+        return lambda r, s, colour, order, closing: function(r, s, order=order)
+    return lambda r, s, colour, order, closing: function(r, s)
 
 
 def render(report: Report, fmt: str, stream: TextIO, colour: bool = False, *,
-           order: str = "weakest") -> None:
+           order: str = "weakest", closing: bool = True) -> None:
     """Write ``report`` to ``stream`` in format ``fmt``.
 
     Parameters
@@ -52,6 +53,9 @@ def render(report: Report, fmt: str, stream: TextIO, colour: bool = False, *,
         Only the text back-end uses it; machine formats never carry colour.
     order:
         Electrode order for text and markdown (``weakest`` or ``rank``).
+    closing:
+        Text only: end with the verdict line (``False`` when the caller
+        prints one line for the whole run).
 
     Raises
     ------
@@ -62,4 +66,4 @@ def render(report: Report, fmt: str, stream: TextIO, colour: bool = False, *,
         raise ValueError(f"unknown format {fmt!r}; choose one of: {', '.join(FORMATS)}")
     if order not in ORDERS:
         raise ValueError(f"unknown order {order!r}; choose one of: {', '.join(ORDERS)}")
-    _backend(fmt)(report, stream, colour, order)
+    _backend(fmt)(report, stream, colour, order, closing)

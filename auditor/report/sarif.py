@@ -1,8 +1,9 @@
 """SARIF 2.1.0 output (OASIS Static Analysis Results Interchange Format).
 
-Every finding is a ``result`` located at the board file; SARIF has no notion
-of board coordinates, so x/y (mm, Y down as in KiCad), layer, nets and
-references go into the result's ``properties``. Waived findings carry a
+Every finding is a ``result`` located at the board file, on the line where
+the item it concerns (the electrode's pad or zone, a track) starts; SARIF has
+no notion of board coordinates, so x/y (mm, Y down as in KiCad), layer, nets
+and references go into the result's ``properties``. Waived findings carry a
 ``suppression``; baselined ones ``baselineState: unchanged``.
 """
 
@@ -18,7 +19,7 @@ from auditor.decide.records import DecidedFinding, Report, RuleInfo
 from auditor.report.as_json import dumps
 from auditor.report.rounding import significant
 from auditor.report.suggestion_view import suggestion_record
-from auditor.rules.finding import Severity
+from auditor.rules.finding import Finding, Severity
 
 SARIF_VERSION = "2.1.0"
 SARIF_SCHEMA_URI = "https://json.schemastore.org/sarif-2.1.0.json"
@@ -85,11 +86,21 @@ def message_text(d: DecidedFinding) -> str:
     return f.message + (f" [{'; '.join(where)}]" if where else "")
 
 
+def _region(f: Finding) -> dict[str, int]:
+    """Where the item concerned starts in the board file. Viewers such as
+    code-scanning annotations place results by line; a finding about the
+    whole board has no line of its own and is anchored at the file's start."""
+    if f.source_line is None:
+        return {"startLine": 1}
+    region = {"startLine": f.source_line}
+    if f.source_column is not None:
+        region["startColumn"] = f.source_column
+    return region
+
+
 def _result(d: DecidedFinding, index: int, uri: str, failing: bool) -> dict[str, Any]:
     f = d.finding
-    # Viewers such as GitHub code scanning place results by line; a board
-    # finding has no meaningful line, so it is anchored at the file's start.
-    physical = {"artifactLocation": {"uri": uri, "index": 0}, "region": {"startLine": 1}}
+    physical = {"artifactLocation": {"uri": uri, "index": 0}, "region": _region(f)}
     result: dict[str, Any] = {
         "ruleId": f.rule_id,
         "ruleIndex": index,

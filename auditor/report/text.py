@@ -3,7 +3,7 @@
 Sections, top to bottom: header, cautions, electrode table, with
 ``--precise`` the coupling and slider blocks (:mod:`auditor.report.text_precise`),
 findings by severity, per-rule counts, what the reader skipped, stale waivers
-and baseline entries, crashed rules, and a one-line result. Without colour the
+and baseline entries, crashed rules, and the closing verdict line. Without colour the
 console is built with no colour system, so not one escape code is written.
 """
 
@@ -18,7 +18,9 @@ from rich.table import Table
 from rich.text import Text
 
 from auditor.decide.records import DecidedFinding, Report, RuleInfo
+from auditor.decide.summary import summarize
 from auditor.report.suggestion_view import effect_text
+from auditor.report.summary_line import summary_text
 from auditor.report.text_electrodes import ORDERS, ordered_sensors, ratio_bar, sensor_table
 from auditor.report.text_fit import stream_width
 from auditor.report.text_lumped import render_lumped_lines
@@ -37,6 +39,7 @@ def _header(console: Console, report: Report) -> None:
     grid.add_column(style="dim")
     grid.add_column()
     grid.add_row("board", f"{info.board_path}  (file format {info.board_version})")
+    grid.add_row("config", info.config_path or "none")
     grid.add_row("profile", f"{info.profile}   fail on {info.fail_on.label}")
     grid.add_row("overlay", info.overlay)
     grid.add_row("touch side", info.touch_side)
@@ -162,29 +165,12 @@ def _listing(console: Console, title: str, lines: tuple[str, ...]) -> None:
 
 
 def _result(console: Console, report: Report) -> None:
-    failing = len(report.failing)
     console.print()
-    if report.exit_code == 0:
-        line = Text("PASS", style="bold green")
-        line.append(f"  nothing at or above {report.info.fail_on.label} (exit 0)", style="")
-        if report.read_warnings:  # partly understood is not clean: say so on the last line
-            line.append(f"; INCOMPLETE: {len(report.read_warnings)} item(s) skipped or "
-                        "guessed while reading, listed above", style="bold yellow")
-        if not report.sensors:
-            line.append("; no electrodes were found, so nothing was judged",
-                        style="bold yellow")
-    else:
-        line = Text("FAIL", style="bold red")
-        why = [f"{failing} finding{'s' if failing != 1 else ''} at or above "
-               f"{report.info.fail_on.label}"] if failing else []
-        if report.rule_errors:
-            why.append(f"{len(report.rule_errors)} rule(s) crashed")
-        line.append("  " + "; ".join(why) + " (exit 1)", style="")
-    console.print(line)
+    console.print(summary_text(summarize(report)))
 
 
 def render_text(report: Report, stream: TextIO, colour: bool, *, order: str = "weakest",
-                width: int | None = None) -> None:
+                width: int | None = None, closing: bool = True) -> None:
     """Write the terminal report to ``stream``.
 
     Parameters
@@ -195,6 +181,9 @@ def render_text(report: Report, stream: TextIO, colour: bool, *, order: str = "w
         ``weakest`` (default) or ``rank`` for the electrode table.
     width:
         Columns; ``None`` asks the terminal, or 100 when not writing to one.
+    closing:
+        End with the verdict line (:mod:`auditor.report.summary_line`);
+        ``False`` when the caller prints one line for the whole run.
     """
     if width is None:
         width = stream_width(stream, _FILE_WIDTH)
@@ -214,6 +203,7 @@ def render_text(report: Report, stream: TextIO, colour: bool, *, order: str = "w
     _listing(console, "Stale baseline entries (no longer found)", report.stale_baseline)
     _listing(console, "Rules that crashed (their checks did not run)",
              tuple(f"{rid}: {err}" for rid, err in report.rule_errors))
-    _result(console, report)
+    if closing:
+        _result(console, report)
     # rich pads table rows to full width; trailing blanks only make diffs noisy.
     stream.write("".join(line.rstrip() + "\n" for line in buffer.getvalue().splitlines()))

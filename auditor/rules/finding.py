@@ -60,6 +60,9 @@ class Finding:
         Named measured values and limits, e.g. ``(("gap_mm", 0.21), ("min_mm", 0.5))``.
     sensor:
         Name of the sensor concerned, ``""`` for board-level findings.
+    source_line, source_column:
+        Where the item concerned starts in the board file (1-based), for
+        annotations on the file (SARIF); ``None`` when unknown.
     """
 
     rule_id: str
@@ -72,6 +75,8 @@ class Finding:
     refs: tuple[str, ...] = ()
     measured: tuple[tuple[str, float], ...] = ()
     sensor: str = ""
+    source_line: int | None = None
+    source_column: int | None = None
 
     @property
     def key(self) -> FindingKey:

@@ -18,11 +18,23 @@ import inspect
 import re
 from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass, field
+from typing import Protocol
 
 from auditor.model.vocabulary import TOUCH_KINDS, SensorKind
 from auditor.rules.context import Limits, RuleContext
 from auditor.rules.finding import Finding, Severity
 from auditor.sensors.model import Sensor
+
+
+class SourcePlaced(Protocol):
+    """Anything read from the board file that knows where it starts."""
+
+    @property
+    def source_line(self) -> int | None: ...  # noqa: D102 - a protocol member
+
+    @property
+    def source_column(self) -> int | None: ...  # noqa: D102
+
 
 _SLUG = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
 
@@ -45,8 +57,11 @@ class RuleCall:
                 measured: Iterable[tuple[str, float]] = (), *,
                 nets: Iterable[str] | None = None, refs: Iterable[str] | None = None,
                 x_mm: float | None = None, y_mm: float | None = None,
-                layer: str | None = None) -> Finding:
-        """A :class:`Finding` of this rule, located at ``sensor`` unless told."""
+                layer: str | None = None, item: SourcePlaced | None = None) -> Finding:
+        """A :class:`Finding` of this rule, located at ``sensor`` unless told;
+        ``item`` (a track, via, pad or zone the finding is about) gives the
+        line in the board file, else the sensor's first item does."""
+        placed: SourcePlaced | None = item if item is not None else sensor
         return Finding(
             rule_id=self.rule_id,
             severity=self.severity,
@@ -60,6 +75,8 @@ class RuleCall:
                                   (sensor.refs if sensor else ())))),
             measured=tuple((k, round(float(v), 6)) for k, v in measured),
             sensor=sensor.name if sensor else "",
+            source_line=placed.source_line if placed is not None else None,
+            source_column=placed.source_column if placed is not None else None,
         )
 
 

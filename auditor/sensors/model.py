@@ -131,6 +131,10 @@ class Sensor:
     path: SensePath | None = None
     surroundings: Surroundings | None = None
     footprint_uids: tuple[str, ...] = ()  # footprints with copper in the electrode
+    #: Where the electrode's first item (pad, else zone) starts in the board
+    #: file, 1-based; reports point annotations there.
+    source_line: int | None = None
+    source_column: int | None = None
 
     @property
     def equivalent_diameter_mm(self) -> float:

@@ -106,11 +106,23 @@ def _sensor(board: Board, cand: Candidate, name: str) -> Sensor:
         c = piece.geometry.representative_point()
     refs = tuple(sorted({board.footprint(u).ref for u in piece.owner_uids}))
     front = piece.layer == board.copper_layers[0]
+    line, column = _source(piece)
     return Sensor(name=name, kind="button", nets=(piece.net,), refs=refs, layer=piece.layer,
                   area_mm2=piece.area_mm2, x_mm=c.x, y_mm=c.y, reason=cand.reason,
                   geometry=piece.geometry, footprint_uids=piece.footprint_uids,
                   exposed=_opened(piece, "F.Mask" if front else "B.Mask", "mask"),
-                  pasted=_opened(piece, "F.Paste" if front else "B.Paste", "paste"))
+                  pasted=_opened(piece, "F.Paste" if front else "B.Paste", "paste"),
+                  source_line=line, source_column=column)
+
+
+def _source(piece: Piece) -> tuple[int | None, int | None]:
+    """Line and column of the piece's first pad, else its first zone, in the file."""
+    for items in (piece.pads, piece.zones):
+        placed = sorted((i.source_line, i.source_column or 0) for i in items
+                        if i.source_line is not None)
+        if placed:
+            return placed[0][0], placed[0][1] or None
+    return None, None
 
 
 def _opened(piece: Piece, layer: str, what: str) -> bool:

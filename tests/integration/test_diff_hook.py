@@ -163,3 +163,83 @@ def test_pre_commit_framework_manifest() -> None:
 
     args = build_parser(_load_commands()).parse_args([*entry[1:], "a.kicad_pcb"])
     assert args.command == "hook" and args.files == ["a.kicad_pcb"]
+
+
+def _baseline_of_the_gap(path: Path) -> None:
+    """A baseline accepting the stand-in's one finding (ground-gap-tight)."""
+    from auditor.decide.baseline import Baseline, dumps
+
+    path.write_text(dumps(Baseline.of(sample.sample_report().findings[:1])), encoding="utf-8")
+
+
+def test_hook_honours_the_configured_baseline(tmp_path: Path, stand_in: None,
+                                              monkeypatch: pytest.MonkeyPatch,
+                                              capsys: pytest.CaptureFixture[str]) -> None:
+    repo = new_repo(tmp_path / "repo")
+    commit_file(repo, "hw/panel.kicad_pcb", "ratio 0.05 gap\n")
+    monkeypatch.chdir(repo)
+    (repo / "hw/panel.kicad_pcb").write_text("ratio 0.06 gap\n")
+    git(repo, "add", "hw/panel.kicad_pcb")
+    assert main(["hook", "run"]) == EXIT_FINDINGS  # no baseline yet: the old finding blocks
+    out = capsys.readouterr().out.splitlines()
+    # On a fail: what fails, then the verdict line (not the whole report).
+    assert out == [
+        "hw/panel.kicad_pcb (staged): what fails the gate (1):",
+        "  error ground-gap-tight SW_MODE: ground gap 0.20 mm is below the 0.50 mm minimum "
+        "(x 124.80 mm, y 114.00 mm, F.Cu)",
+        "hw/panel.kicad_pcb (staged): FAIL  1 error, 0 warnings, 0 waived, 0 baselined, "
+        "1 stale; 1 finding at or above error; INCOMPLETE: 1 item(s) skipped or guessed "
+        "while reading (exit 1)"]
+    _baseline_of_the_gap(repo / "hw/accepted.json")
+    (repo / "padaudit.toml").write_text('baseline = "hw/accepted.json"\n')
+    git(repo, "add", "padaudit.toml", "hw/accepted.json")
+    assert main(["hook", "run"]) == EXIT_CLEAN
+    # On a pass: one line, and it says what the baseline accepted.
+    assert capsys.readouterr().out == (
+        "hw/panel.kicad_pcb (staged): PASS  0 errors, 0 warnings, 0 waived, 1 baselined, "
+        "1 stale; nothing at or above error; INCOMPLETE: 1 item(s) skipped or guessed while "
+        "reading (exit 0)\n")
+
+
+def test_hook_baseline_flag_on_given_files(tmp_path: Path, stand_in: None,
+                                           monkeypatch: pytest.MonkeyPatch,
+                                           capsys: pytest.CaptureFixture[str]) -> None:
+    monkeypatch.chdir(tmp_path)
+    (tmp_path / "panel.kicad_pcb").write_text("ratio 0.05 gap\n")
+    _baseline_of_the_gap(tmp_path / "base.json")
+    assert main(["hook", "run", "panel.kicad_pcb"]) == EXIT_FINDINGS
+    assert main(["hook", "run", "--baseline", "base.json", "panel.kicad_pcb"]) == EXIT_CLEAN
+    assert "1 baselined" in capsys.readouterr().out.splitlines()[-1]
+    assert main(["hook", "run", "--baseline", "missing.json", "panel.kicad_pcb"]) \
+        == EXIT_BAD_INPUT
+
+
+def test_hook_new_since_fails_only_on_new_findings(tmp_path: Path, stand_in: None,
+                                                   monkeypatch: pytest.MonkeyPatch,
+                                                   capsys: pytest.CaptureFixture[str]) -> None:
+    repo = new_repo(tmp_path / "repo")
+    commit_file(repo, "panel.kicad_pcb", "ratio 0.05\n")
+    monkeypatch.chdir(repo)
+    (repo / "panel.kicad_pcb").write_text("ratio 0.05 gap\n")
+    git(repo, "add", "panel.kicad_pcb")
+    assert main(["hook", "run", "--new-since", "HEAD"]) == EXIT_FINDINGS  # the gap is new
+    commit_file(repo, "panel.kicad_pcb", "ratio 0.05 gap\n")
+    (repo / "panel.kicad_pcb").write_text("ratio 0.06 gap\n")
+    git(repo, "add", "panel.kicad_pcb")
+    capsys.readouterr()
+    assert main(["hook", "run", "--new-since", "HEAD"]) == EXIT_CLEAN  # it was there at HEAD
+    assert "1 baselined" in capsys.readouterr().out
+    assert main(["hook", "run", "--new-since", "HEAD~1"]) == EXIT_FINDINGS
+    (repo / "second.kicad_pcb").write_text("ratio 0.05 gap\n")  # new since HEAD: counts in full
+    git(repo, "add", "second.kicad_pcb")
+    assert main(["hook", "run", "--new-since", "HEAD"]) == EXIT_FINDINGS
+    assert main(["hook", "run", "--new-since", "no-such-rev"]) == EXIT_BAD_INPUT
+
+
+def test_hook_install_bakes_the_gate_options_in(tmp_path: Path, stand_in: None,
+                                                monkeypatch: pytest.MonkeyPatch) -> None:
+    repo = new_repo(tmp_path / "repo")
+    monkeypatch.chdir(repo)
+    assert main(["hook", "install", "--new-since", "origin/main", "--baseline", "b.json"]) == 0
+    text = (repo / ".git" / "hooks" / "pre-commit").read_text()
+    assert "hook run --baseline b.json --new-since origin/main" in text

@@ -200,3 +200,23 @@ def test_audit_svg_has_the_board_outline_and_copper(tmp_path: Path) -> None:
           "--output", str(tmp_path / "r.txt")])
     ids = {g.get("id") for g in ET.parse(picture).getroot().iter("{http://www.w3.org/2000/svg}g")}
     assert {"outline", "copper", "electrodes", "findings", "legend"} <= ids
+
+
+@needs_fixture
+def test_junit_marks_rules_that_did_not_run_as_skipped(tmp_path: Path) -> None:
+    """A quick run does not judge 3-D results, and a rule switched off in the
+    configuration does not run: both are skipped with the reason, never passed."""
+    import xml.etree.ElementTree as ET
+
+    config = tmp_path / "padaudit.toml"
+    config.write_text('[severity]\n"trace-crossings" = "off"\n', encoding="utf-8")
+    _, text = _audit(tmp_path, "--format", "junit", "--config", str(config))
+    root = ET.fromstring(text)
+    skipped = {case.get("name"): case.find("skipped").get("message")  # type: ignore[union-attr]
+               for case in root.iter("testcase") if case.find("skipped") is not None}
+    assert skipped["crosstalk-high"] == "judges 3-D results only: runs with --precise"
+    assert skipped["slider-dead-zone"] == "judges 3-D results only: runs with --precise"
+    assert skipped["trace-crossings"] == "switched off by the profile or the configuration"
+    rules = next(s for s in root.iter("testsuite") if s.get("name") == "padaudit.rules")
+    assert rules.get("skipped") == str(len(skipped))
+    assert root.get("skipped") == str(len(skipped))

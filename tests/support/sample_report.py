@@ -192,6 +192,8 @@ def sample_report(*, with_board: bool = False, **changes: object) -> Report:
                        "is unknown and was left out",),
         stale_waivers=("floating-copper-near on E9: no finding matched this waiver",),
         cautions=(MAINS_CAUTION,),
+        skipped_rules=(("crosstalk-high", "judges 3-D results only: runs with --precise"),
+                       ("trace-crossings", "switched off by the profile or the configuration")),
         board=sample_board() if with_board else None,
     )
     return dataclasses.replace(report, **changes)  # type: ignore[arg-type]

@@ -36,10 +36,32 @@ def test_output_file_is_written_even_when_the_run_fails(tmp_path: Path) -> None:
     code, out = _emit(sample.sample_report(), "--format", "json", "--output", str(target))
     assert code == 1
     assert json.loads(target.read_text())["summary"]["exit_code"] == 1
-    assert out.startswith("padaudit: FAIL (incomplete: 1 item(s) skipped while reading): "
-                          "7 electrode(s), 6 finding(s), 3 failing")
+    # The verdict line states the exit code (common practice, no source).
+    assert out == ("FAIL  3 errors, 1 warning, 1 waived, 1 baselined, 1 stale; 3 findings at "
+                   "or above error; INCOMPLETE: 1 item(s) skipped or guessed while reading "
+                   "(exit 1)\n")
     code, out = _emit(sample.sample_report(), "--output", str(tmp_path / "r.txt"), "--quiet")
     assert out == "" and "\x1b[" not in (tmp_path / "r.txt").read_text()
+
+
+def test_files_written_are_confirmed_on_stderr_unless_quiet(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    report = with_baseline(sample.sample_report(), AuditOptions(accept_all=True))
+    base, svg = tmp_path / "baseline.json", tmp_path / "panel.svg"
+    _emit(report, "--write-baseline", str(base), "--format", "json",
+          "--output", str(tmp_path / "r.json"))
+    entries = len(json.loads(base.read_text())["entries"])
+    err = capsys.readouterr().err.splitlines()
+    assert err[:2] == [f"wrote {base}: {entries} entries", f"wrote {tmp_path / 'r.json'}"]
+    _emit(sample.sample_report(with_board=True), "--svg", str(svg), "-q")
+    assert svg.is_file() and capsys.readouterr().err == ""
+
+
+def test_against_and_audit_end_with_one_verdict_line(tmp_path: Path) -> None:
+    """A text run ends with exactly one PASS/FAIL line, and it matches the code."""
+    code, out = _emit(sample.sample_report())
+    verdicts = [line for line in out.splitlines() if line.startswith(("PASS", "FAIL"))]
+    assert verdicts == [out.splitlines()[-1]] and verdicts[0].endswith(f"(exit {code})")
 
 
 def test_unwritable_output_is_a_usage_error(tmp_path: Path) -> None:
@@ -116,3 +138,20 @@ def test_against_a_revision(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> 
     assert "HEAD~1:hw/panel.kicad_pcb" in text
     assert "lost 51.1 % (> 20 %)" in text  # (0.0614 - 0.03) / 0.0614 = 0.5114
     assert "padaudit-rev-" not in text  # no temporary path leaks into the output
+    # One verdict for the whole run, the comparison's folded in: the audit
+    # alone passes (no findings), the comparison fails, and so does the line.
+    verdicts = [line for line in text.splitlines() if line.startswith(("PASS", "FAIL"))]
+    assert verdicts == [text.splitlines()[-1]]
+    assert verdicts[0].startswith("FAIL  0 errors") and verdicts[0].endswith("(exit 1)")
+    assert "SW_POWER lost more than 20 % of ΔC/Cp" in verdicts[0]
+
+
+def test_json_summary_counts_are_the_verdict_lines(tmp_path: Path) -> None:
+    target = tmp_path / "r.json"
+    code, line = _emit(sample.sample_report(), "--format", "json", "--output", str(target))
+    summary = json.loads(target.read_text())["summary"]
+    assert summary["exit_code"] == code
+    counts = (f"{summary['findings']['error']} errors", f"{summary['waived']} waived",
+              f"{summary['baselined']} baselined", f"{summary['stale']} stale")
+    assert all(part in line for part in counts), (counts, line)
+    assert (summary["waived"], summary["baselined"], summary["stale"]) == (1, 1, 1)

@@ -142,7 +142,7 @@ def test_unknown_key_lists_valid_ones(tmp_path: Path) -> None:
     with pytest.raises(ConfigError) as exc:
         load_config(cfg)
     assert exc.value.line == 2
-    assert "valid keys: air_gap_mm, controller, fail_on" in str(exc.value)
+    assert "valid keys: air_gap_mm, baseline, controller, fail_on" in str(exc.value)
 
 
 @pytest.mark.parametrize("text, fragment", [
