@@ -8,7 +8,7 @@ from auditor.model.vocabulary import TOUCH_KINDS
 from auditor.rules.context import EPS_MM
 from auditor.rules.finding import Finding, Severity
 from auditor.rules.groups import in_one_group
-from auditor.rules.registry import RuleCall, sensor_rule
+from auditor.rules.registry import RuleCall, board_rule, sensor_rule
 from auditor.rules.sense_path import (
     at_crossing,
     at_neighbour,
@@ -219,23 +219,41 @@ def trace_under_electrode(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
                            nets=sensor.nets + nets_of(other, call))
 
 
-@sensor_rule(
+@board_rule(
     "series-resistor-missing",
     title="No series resistor on the sense line",
     fix="Add a series resistor (typically 470 Ω - 2.2 kΩ) close to the controller pin.",
     severity=Severity.WARNING,
 )
-def series_resistor_missing(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+def series_resistor_missing(call: RuleCall) -> Iterator[Finding]:
     """A series resistor at the controller pin limits ESD current into it and,
     with the pin's capacitance, filters radio-frequency noise picked up by the
     electrode and trace. When the path ends on a connector to an off-board
-    controller, the resistor belongs on the controller's board."""
-    path = sensor.path
-    if path is None or not path.complete or path.series_ref or off_board(path):
-        return
-    yield call.finding(
-        f"the path reaches {path.controller_ref or 'the controller'} without a series part",
-        sensor, refs=sensor.refs + ((path.controller_ref,) if path.controller_ref else ()))
+    controller, the resistor belongs on the controller's board. One cause, one
+    finding: the electrodes wired straight to one controller are reported
+    together (their nets and references all in the finding)."""
+    by_controller: dict[str, list[Sensor]] = {}
+    for sensor in call.board.sensors:
+        path = sensor.path
+        if sensor.kind in TOUCH_KINDS and path is not None and path.complete \
+                and not path.series_ref and not off_board(path):
+            by_controller.setdefault(path.controller_ref, []).append(sensor)
+    for controller, sensors in sorted(by_controller.items()):
+        yield _without_series(sorted(sensors, key=lambda s: s.name), controller, call)
+
+
+def _without_series(sensors: list[Sensor], controller: str, call: RuleCall) -> Finding:
+    first, names = sensors[0], [s.name for s in sensors]
+    refs = [r for s in sensors for r in s.refs] + ([controller] if controller else [])
+    if len(sensors) == 1:
+        return call.finding(
+            f"the path reaches {controller or 'the controller'} without a series part",
+            first, refs=refs)
+    shown = ", ".join(names[:6]) + (f" and {len(names) - 6} more" if len(names) > 6 else "")
+    return call.finding(
+        f"{len(sensors)} electrodes reach {controller or 'the controller'} without a series "
+        f"part: {shown}", first, (("electrodes", float(len(sensors))),),
+        nets=[n for s in sensors for n in s.nets], refs=refs)
 
 
 @sensor_rule(

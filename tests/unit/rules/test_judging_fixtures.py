@@ -95,3 +95,13 @@ def test_generator_output_is_committed(tmp_path: Path) -> None:
         committed = FIXTURES / path.name
         assert committed.read_text(encoding="utf-8") == path.read_text(encoding="utf-8"), \
             f"regenerate: python fixtures/make_judging_boards.py ({path.name} differs)"
+
+
+def test_one_cause_is_one_finding_with_every_electrode() -> None:
+    """Electrodes wired straight to one controller share one cause: one
+    finding that names them all (common practice, no source)."""
+    found = [d.finding for d in audited("no-series-resistors").findings
+             if d.finding.rule_id == "series-resistor-missing"]
+    assert len(found) == 1
+    assert {"TOUCH1", "TOUCH2"} <= set(found[0].nets)
+    assert "2 electrodes" in found[0].message
