@@ -19,6 +19,7 @@ from auditor.rules.sense_path import (
     off_board,
     sibling_net,
 )
+from auditor.sensors.cues import is_ground_name
 from auditor.sensors.model import Sensor
 from auditor.sensors.noisy import is_shield_net
 
@@ -123,7 +124,9 @@ def trace_parallel_run(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     they run together; a signal on the other net then couples straight into
     the measurement. Two sense lines (another electrode's trace, before or
     after its series resistor) are quiet neighbours: they only need a spacing
-    of a few trace widths."""
+    of a few trace widths. A ground beside the trace (any ground net, a
+    second or a connector's return too) carries no signal: it shields, and
+    what it costs is baseline capacitance, which the Cp rules judge."""
     path = sensor.path
     if path is None:
         return
@@ -132,8 +135,8 @@ def trace_parallel_run(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     sense_gap_mm = call.limits["sense_spacing_widths"] * width_mm
     for neighbour in sorted(path.neighbours, key=lambda n: n.net):
         if neighbour.min_distance_mm is None or is_shield_net(neighbour.net) \
-                or sibling_net(sensor, neighbour.net, call):
-            continue  # crossings only, a driven shield, or a segment of its own slider
+                or is_ground_name(neighbour.net) or sibling_net(sensor, neighbour.net, call):
+            continue  # crossings only, a shield, a ground, or a segment of its own slider
         if is_sense(neighbour, call) and neighbour.min_distance_mm >= sense_gap_mm - EPS_MM:
             continue
         if neighbour.parallel_mm > limit_mm + EPS_MM:
