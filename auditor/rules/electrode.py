@@ -9,6 +9,7 @@ from auditor.rules.context import EPS_MM
 from auditor.rules.finding import Finding, Severity
 from auditor.rules.groups import in_one_group
 from auditor.rules.registry import RuleCall, board_rule, sensor_rule
+from auditor.rules.repeated import one_for_all
 from auditor.sensors.model import Sensor
 
 
@@ -117,19 +118,22 @@ def electrode_mask_open_covered(sensor: Sensor, call: RuleCall) -> Iterator[Find
                            "(under the cover)", sensor)
 
 
-@sensor_rule(
+@board_rule(
     "electrode-paste",
     title="Solder paste on an electrode",
     fix="Remove the paste layer from the electrode pad so no solder is printed on it.",
     severity=Severity.WARNING,
     thresholds=("electrode_must_be_covered",),
 )
-def electrode_paste(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+def electrode_paste(call: RuleCall) -> Iterator[Finding]:
     """Paste printed on a large pad leaves an uneven solder hump that holds
     the cover off the pad (an air gap of varying height, so varying
-    sensitivity) and is a sign the pad was drawn as a component pad."""
-    if call.limits.flag("electrode_must_be_covered") and sensor.pasted:
-        yield call.finding("electrode has solder paste", sensor)
+    sensitivity) and is a sign the pad was drawn as a component pad. Pads
+    drawn alike (one footprint for every key) are one cause: one finding."""
+    pasted = [s for s in call.board.sensors if s.kind in TOUCH_KINDS and s.pasted]
+    if call.limits.flag("electrode_must_be_covered") and pasted:
+        yield one_for_all(call, pasted, "electrode has solder paste",
+                          "electrodes have solder paste")
 
 
 @sensor_rule(

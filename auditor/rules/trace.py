@@ -9,6 +9,7 @@ from auditor.rules.context import EPS_MM
 from auditor.rules.finding import Finding, Severity
 from auditor.rules.groups import in_one_group
 from auditor.rules.registry import RuleCall, board_rule, sensor_rule
+from auditor.rules.repeated import one_for_all
 from auditor.rules.sense_path import (
     at_crossing,
     at_neighbour,
@@ -24,24 +25,35 @@ from auditor.sensors.model import Sensor
 from auditor.sensors.noisy import is_shield_net
 
 
-@sensor_rule(
+@board_rule(
     "trace-unfollowed",
     title="Sense path could not be followed to a controller pin",
     fix="Check the net is routed completely (no unrouted ratsnest, no broken track) and that "
         "the controller is a footprint on the board; set `controller` in the configuration.",
     severity=Severity.WARNING,
 )
-def trace_unfollowed(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+def trace_unfollowed(call: RuleCall) -> Iterator[Finding]:
     """The trace rules (length, vias, neighbours, series resistor) judge the
     followed path only. When it stops short of a controller pin, those rules
-    saw part of the trace, so the sensor must not be reported as clean."""
-    path = sensor.path
-    if path is None:
-        yield call.finding("no sense path was measured for this electrode", sensor)
-    elif not path.complete:
-        yield call.finding(
-            f"the sense path stops after {path.length_mm:.1f} mm before reaching a "
-            "controller pin", sensor, (("length_mm", path.length_mm),))
+    saw part of the trace, so the sensor must not be reported as clean.
+    Electrodes whose net has no track or via at all are one cause (the
+    board is not routed yet) and are reported together."""
+    unrouted: list[Sensor] = []
+    for sensor in call.board.sensors:
+        path = sensor.path
+        if sensor.kind not in TOUCH_KINDS or (path is not None and path.complete):
+            continue
+        if path is None:
+            yield call.finding("no sense path was measured for this electrode", sensor)
+        elif path.length_mm <= EPS_MM and path.vias == 0:
+            unrouted.append(sensor)
+        else:
+            yield call.finding(
+                f"the sense path stops after {path.length_mm:.1f} mm before reaching a "
+                "controller pin", sensor, (("length_mm", path.length_mm),))
+    if unrouted:
+        yield one_for_all(call, unrouted, "the sense net has no track or via: it is not "
+                          "routed", "electrode nets have no track or via (not routed)")
 
 
 @sensor_rule(
@@ -242,21 +254,10 @@ def series_resistor_missing(call: RuleCall) -> Iterator[Finding]:
                 and not path.series_ref and not off_board(path):
             by_controller.setdefault(path.controller_ref, []).append(sensor)
     for controller, sensors in sorted(by_controller.items()):
-        yield _without_series(sorted(sensors, key=lambda s: s.name), controller, call)
-
-
-def _without_series(sensors: list[Sensor], controller: str, call: RuleCall) -> Finding:
-    first, names = sensors[0], [s.name for s in sensors]
-    refs = [r for s in sensors for r in s.refs] + ([controller] if controller else [])
-    if len(sensors) == 1:
-        return call.finding(
-            f"the path reaches {controller or 'the controller'} without a series part",
-            first, refs=refs)
-    shown = ", ".join(names[:6]) + (f" and {len(names) - 6} more" if len(names) > 6 else "")
-    return call.finding(
-        f"{len(sensors)} electrodes reach {controller or 'the controller'} without a series "
-        f"part: {shown}", first, (("electrodes", float(len(sensors))),),
-        nets=[n for s in sensors for n in s.nets], refs=refs)
+        where = controller or "the controller"
+        yield one_for_all(call, sensors, f"the path reaches {where} without a series part",
+                          f"electrodes reach {where} without a series part",
+                          (controller,) if controller else ())
 
 
 @sensor_rule(

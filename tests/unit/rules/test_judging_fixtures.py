@@ -97,11 +97,16 @@ def test_generator_output_is_committed(tmp_path: Path) -> None:
             f"regenerate: python fixtures/make_judging_boards.py ({path.name} differs)"
 
 
-def test_one_cause_is_one_finding_with_every_electrode() -> None:
-    """Electrodes wired straight to one controller share one cause: one
-    finding that names them all (common practice, no source)."""
-    found = [d.finding for d in audited("no-series-resistors").findings
-             if d.finding.rule_id == "series-resistor-missing"]
+@pytest.mark.parametrize(("name", "rule_id"), [
+    ("no-series-resistors", "series-resistor-missing"),
+    ("pasted-electrodes", "electrode-paste"),
+    ("unrouted-electrodes", "trace-unfollowed"),
+])
+def test_one_cause_is_one_finding_with_every_electrode(name: str, rule_id: str) -> None:
+    """One cause repeated on every electrode (wired straight to one
+    controller, paste on every pad, nothing routed) is one finding that
+    names them all (common practice, no source)."""
+    found = [d.finding for d in audited(name).findings if d.finding.rule_id == rule_id]
     assert len(found) == 1
     assert {"TOUCH1", "TOUCH2"} <= set(found[0].nets)
-    assert "2 electrodes" in found[0].message
+    assert found[0].message.startswith("2 electrode")
