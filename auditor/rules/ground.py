@@ -5,12 +5,14 @@ from __future__ import annotations
 
 from collections.abc import Iterator
 
+from auditor.model.vocabulary import TOUCH_KINDS
 from auditor.rules.context import EPS_MM
 from auditor.rules.finding import Finding, Severity
 from auditor.rules.groups import in_one_group
-from auditor.rules.registry import RuleCall, sensor_rule
+from auditor.rules.registry import RuleCall, board_rule, sensor_rule
+from auditor.rules.repeated import one_for_all
 from auditor.rules.sense_path import off_board
-from auditor.sensors.model import Sensor
+from auditor.sensors.model import LayerShadow, Sensor
 from auditor.sensors.noisy import is_shield_net
 
 
@@ -88,7 +90,7 @@ def ground_gap_wide(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
             (("gap_mm", gap_mm), ("max_mm", limit_mm)))
 
 
-@sensor_rule(
+@board_rule(
     "copper-under-electrode",
     title="Solid or too-dense copper under the electrode",
     fix="Under the electrode use a ground hatch of at most the profile's fill ratio, or no "
@@ -96,14 +98,37 @@ def ground_gap_wide(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     severity=Severity.WARNING,
     thresholds=("under_shadow_min_fraction", "under_fill_max_ratio"),
 )
-def copper_under_electrode(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+def copper_under_electrode(call: RuleCall) -> Iterator[Finding]:
     """Copper on another layer under the pad forms a parallel-plate capacitor
     with it through the board: with a 1.6 mm FR-4 board and a solid plane the
     baseline can exceed the controller's range and the relative change under a
     finger collapses. A hatch lowers that in proportion to its fill. A driven
-    shield under the pad is at the pad's own potential and is exempt."""
+    shield under the pad is at the pad's own potential and is exempt. One pour
+    under many electrodes is one cause: one finding lists them all."""
+    max_fill = call.limits["under_fill_max_ratio"]
+    by_pour: dict[tuple[str, str, tuple[str, ...]], list[tuple[Sensor, LayerShadow]]] = {}
+    for sensor in call.board.sensors:
+        for shadow in _dense_shadows(sensor, call):
+            by_pour.setdefault((shadow.layer, shadow.fill, shadow.nets), []).append(
+                (sensor, shadow))
+    for (layer, fill, nets), found in sorted(by_pour.items()):
+        sensor, shadow = found[0]
+        fills = [s.fill_ratio for _, s in found]
+        single = (f"{fill} copper on {layer} covers {100 * shadow.shadowed_fraction:.0f} % "
+                  f"of the electrode with {100 * shadow.fill_ratio:.0f} % fill (limit "
+                  f"{100 * max_fill:.0f} %)")
+        many = (f"electrodes lie over {fill} copper on {layer} with {100 * min(fills):.0f}-"
+                f"{100 * max(fills):.0f} % fill (limit {100 * max_fill:.0f} %)")
+        measured = (("shadowed_fraction", shadow.shadowed_fraction),
+                    ("fill_ratio", max(fills)), ("max_fill_ratio", max_fill))
+        yield one_for_all(call, [s for s, _ in found], single, many, extra_nets=nets,
+                          measured=measured, layer=layer)
+
+
+def _dense_shadows(sensor: Sensor, call: RuleCall) -> Iterator[LayerShadow]:
+    """The copper under ``sensor`` denser than the profile allows."""
     surround = sensor.surroundings
-    if surround is None:
+    if surround is None or sensor.kind not in TOUCH_KINDS:
         return
     min_fraction = call.limits["under_shadow_min_fraction"]
     max_fill = call.limits["under_fill_max_ratio"]
@@ -112,14 +137,7 @@ def copper_under_electrode(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
                 or (shadow.nets and all(is_shield_net(n) for n in shadow.nets)):
             continue  # a driven shield under the pad is there to cut Cp, not add it
         if shadow.fill_ratio > max_fill + 1e-9:
-            yield call.finding(
-                f"{shadow.fill} copper on {shadow.layer} covers "
-                f"{100 * shadow.shadowed_fraction:.0f} % of the electrode with "
-                f"{100 * shadow.fill_ratio:.0f} % fill (limit {100 * max_fill:.0f} %)",
-                sensor,
-                (("shadowed_fraction", shadow.shadowed_fraction),
-                 ("fill_ratio", shadow.fill_ratio), ("max_fill_ratio", max_fill)),
-                nets=sensor.nets + shadow.nets, layer=shadow.layer)
+            yield shadow
 
 
 @sensor_rule(

@@ -28,21 +28,24 @@ def listed(names: Sequence[str]) -> str:
 
 
 def one_for_all(call: RuleCall, sensors: Iterable[Sensor], single: str, many: str,
-                extra_refs: Sequence[str] = ()) -> Finding:
+                extra_refs: Sequence[str] = (), extra_nets: Sequence[str] = (),
+                measured: Sequence[tuple[str, float]] = (), layer: str | None = None,
+                ) -> Finding:
     """One finding for ``sensors`` that share one cause.
 
-    With one sensor it is that sensor's finding (message ``single``), as a
-    per-electrode rule would give it, so its identity (rule, sensor, nets,
-    refs) stays what baselines and waivers hold. With several it sits on the
-    first by name, says ``"{count} {many}: {names}"`` and carries the nets
-    and references of all.
+    With one sensor it is that sensor's finding (message ``single``,
+    ``measured`` as given), as a per-electrode rule would give it, so its
+    identity (rule, sensor, nets, refs) stays what baselines and waivers
+    hold. With several it sits on the first by name, says
+    ``"{count} {many}: {names}"`` and carries the nets and references of all
+    (``extra_nets``/``extra_refs``, e.g. the controller or the pour, added).
     """
     ordered = sorted(sensors, key=lambda s: s.name)
     first = ordered[0]
     refs = [r for s in ordered for r in s.refs] + list(extra_refs)
+    nets = [n for s in ordered for n in s.nets] + list(extra_nets)
     if len(ordered) == 1:
-        return call.finding(single, first, refs=refs)
+        return call.finding(single, first, measured, nets=nets, refs=refs, layer=layer)
     return call.finding(
         f"{len(ordered)} {many}: {listed([s.name for s in ordered])}", first,
-        (("electrodes", float(len(ordered))),),
-        nets=[n for s in ordered for n in s.nets], refs=refs)
+        (("electrodes", float(len(ordered))), *measured), nets=nets, refs=refs, layer=layer)
