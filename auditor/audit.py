@@ -15,6 +15,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING
 
 from auditor import __version__
+from auditor.audit_suggest import with_suggestions
 from auditor.config import Config, discover_config, with_overrides
 from auditor.config.profiles import Profile, load_profile
 from auditor.decide import Policy, decide, sensitivity_ranks, sensor_strength
@@ -55,6 +56,8 @@ class AuditOptions:
     baseline: str | None = None
     #: Accept every current finding (what ``--write-baseline`` records).
     accept_all: bool = False
+    #: Attach predicted fixes to the findings (:mod:`auditor.audit_suggest`).
+    suggest: bool = False
 
 
 @dataclass(frozen=True)
@@ -175,7 +178,10 @@ def run_audit(board_path: str | Path, options: AuditOptions | None = None) -> Re
         sensors, solve_sensors(board, sensors, setup, opts, quick) if opts.solve else {})
     extras = _precise_extras(board, sensors, setup) if opts.solve and opts.precise else None
     unsolved = {**_unsolved(sensors, metrics, opts), **broken} if opts.solve else {}
-    return with_baseline(build_report(board, sensors, metrics, setup, extras, unsolved), opts)
+    report = build_report(board, sensors, metrics, setup, extras, unsolved)
+    if opts.solve and opts.suggest:
+        report = with_suggestions(report, board, sensors, setup.config, setup.thresholds)
+    return with_baseline(report, opts)
 
 
 def with_baseline(report: Report, options: AuditOptions) -> Report:

@@ -32,7 +32,8 @@ def options_from_args(args: argparse.Namespace) -> AuditOptions:
         overlay=getattr(args, "overlay", None), power=getattr(args, "power", None),
         touch_side=getattr(args, "touch_side", None), fail_on=getattr(args, "fail_on", None),
         solve=not getattr(args, "no_solve", False),
-        precise=bool(getattr(args, "precise", False)))
+        precise=bool(getattr(args, "precise", False)),
+        suggest=bool(getattr(args, "suggest", False)))
 
 
 def gated_options(args: argparse.Namespace) -> AuditOptions:

@@ -11,7 +11,14 @@ import dataclasses
 
 from auditor.audit import run_audit
 from auditor.cli.audit_runner import gated_options
-from auditor.cli.options import add_fail_on, add_overlay, add_power, add_profile, add_touch_side
+from auditor.cli.options import (
+    add_fail_on,
+    add_no_suggest,
+    add_overlay,
+    add_power,
+    add_profile,
+    add_touch_side,
+)
 from auditor.cli.progress import ProgressCallback
 from auditor.cli.report_options import add_report_options, emit
 
@@ -38,6 +45,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
     parser.add_argument("--precise", action="store_true",
                         help="solve the real copper shapes in 3-D (slower); adds pad-to-pad "
                              "coupling and slider response")
+    add_no_suggest(parser)
     add_report_options(parser)
 
 

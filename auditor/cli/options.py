@@ -48,5 +48,12 @@ def add_touch_side(parser: _Adder) -> None:
                         help="which side of the board faces the finger")
 
 
-__all__ = ["PROFILE_HELP", "add_fail_on", "add_overlay", "add_power", "add_profile",
-           "add_touch_side"]
+def add_no_suggest(parser: _Adder) -> None:
+    """``--no-suggest``: findings without the predicted fixes (faster)."""
+    parser.add_argument("--no-suggest", dest="suggest", action="store_false",
+                        help="leave out the suggested changes and their predicted effect "
+                             "(saves the extra field solves)")
+
+
+__all__ = ["PROFILE_HELP", "add_fail_on", "add_no_suggest", "add_overlay", "add_power",
+           "add_profile", "add_touch_side"]

@@ -14,6 +14,7 @@ from dataclasses import dataclass, field
 
 from auditor.model.board import Board
 from auditor.model.results import PadMetrics, PreciseExtras
+from auditor.model.suggestions import Suggestion
 from auditor.rules.finding import Finding, Severity
 from auditor.sensors.model import Sensor
 
@@ -37,13 +38,16 @@ class DecidedFinding:
 
     ``severity`` is the effective severity; ``waived`` carries the waiver's
     reason when a waiver matched; ``in_baseline`` marks findings already
-    accepted in a baseline file (shown, never failing).
+    accepted in a baseline file (shown, never failing); ``suggestions``: the
+    changes that fix it with their predicted effect (attached by the audit
+    entry, :mod:`auditor.audit_suggest`).
     """
 
     finding: Finding
     severity: Severity
     waived: str = ""
     in_baseline: bool = False
+    suggestions: tuple[Suggestion, ...] = ()
 
     @property
     def counts_for_gate(self) -> bool:

@@ -27,10 +27,10 @@ from dataclasses import dataclass
 
 from auditor.field.axisym import AxisymModel, Sheet
 from auditor.field.circuit import DEVICE_TO_EARTH
+from auditor.field.dielectric import BoardLayer
 from auditor.field.matrix import CapacitanceMatrix
 from auditor.field.mutual import MutualSetup, MutualSolve, solve_mutual
 from auditor.field.pad_model import (
-    BoardLayer,
     PadSetup,
     check_setup,
     dielectrics,

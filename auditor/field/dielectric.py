@@ -1,4 +1,5 @@
-"""The dielectric slab both 2-D solvers fill their mesh with.
+"""The dielectric layers: as a board lists them, and as the slab both 2-D
+solvers fill their mesh with.
 
 The axisymmetric solver (:mod:`auditor.field.axisym`) reads the heights as
 ``z`` and the cross-section solver (:mod:`auditor.field.crosssection`) as
@@ -25,4 +26,14 @@ class DielectricSlab:
     er: float
 
 
-__all__ = ["DielectricSlab"]
+@dataclass(frozen=True)
+class BoardLayer:
+    """One dielectric layer of a board as a designer lists it, from the touch
+    side down: a thickness and a permittivity (the solvers place it as a
+    :class:`DielectricSlab`)."""
+
+    thickness_mm: float
+    er: float
+
+
+__all__ = ["BoardLayer", "DielectricSlab"]

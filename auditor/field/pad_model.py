@@ -15,7 +15,7 @@ from functools import lru_cache
 from auditor.errors import UsageError
 from auditor.field.axisym import AxisymModel, Sheet, solve_axisym, solve_axisym_pair
 from auditor.field.circuit import BODY_TO_EARTH_PF, DEVICE_TO_EARTH, touch_network
-from auditor.field.dielectric import DielectricSlab
+from auditor.field.dielectric import BoardLayer, DielectricSlab
 from auditor.field.matrix import CapacitanceMatrix
 from auditor.field.traces import TraceRunSpec
 from auditor.model.vocabulary import PadSide, PowerPreset
@@ -26,14 +26,6 @@ from auditor.model.vocabulary import PadSide, PowerPreset
 _HATCH_SCALE = 3.0
 #: Ground ring / plane reach beyond the pad when not given (mm).
 DEFAULT_GROUND_MARGIN_MM = 10.0
-
-
-@dataclass(frozen=True)
-class BoardLayer:
-    """One dielectric layer of the board, listed from the touch side down."""
-
-    thickness_mm: float
-    er: float
 
 
 @dataclass(frozen=True)

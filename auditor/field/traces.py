@@ -26,7 +26,7 @@ from auditor.errors import UsageError
 from auditor.field.crosssection import TraceSection, trace_pf_per_mm, via_pf
 
 if TYPE_CHECKING:
-    from auditor.field.api import BoardLayer
+    from auditor.field.dielectric import BoardLayer
 
 #: Return distance assumed for a trace with no plane and no coplanar ground
 #: near it (common practice, no source: the device ground is somewhere within

@@ -16,6 +16,7 @@ from typing import TYPE_CHECKING, Any, TextIO
 from auditor.decide.records import DecidedFinding, Report, SensorResult
 from auditor.model.results import PadMetrics
 from auditor.report.rounding import significant
+from auditor.report.suggestion_view import suggestion_record
 from auditor.report.verdicts import electrode_verdicts
 from auditor.sensors.model import SensePath, Surroundings
 
@@ -125,7 +126,9 @@ def _sensor(r: SensorResult, verdict: str) -> dict[str, Any]:
 
 def _finding(d: DecidedFinding, failing: bool) -> dict[str, Any]:
     f = d.finding
-    return {
+    suggested = ({"suggestions": [suggestion_record(s) for s in d.suggestions]}
+                 if d.suggestions else {})
+    return {**suggested,
         "rule_id": f.rule_id, "severity": d.severity.label,
         "default_severity": f.severity.label, "message": f.message,
         "x_mm": significant(f.x_mm), "y_mm": significant(f.y_mm), "layer": f.layer,

@@ -6,6 +6,7 @@ from __future__ import annotations
 from typing import TextIO
 
 from auditor.decide.records import DecidedFinding, Report
+from auditor.report.suggestion_view import suggestion_line
 from auditor.report.text import ordered_sensors
 from auditor.report.text_precise import strongest_pairs
 from auditor.report.verdicts import electrode_verdicts
@@ -59,6 +60,8 @@ def _finding_line(d: DecidedFinding, fixes: dict[str, str]) -> str:
         line += f"  \n  waived: {d.waived}"
     if d.in_baseline:
         line += "  \n  in the baseline"
+    for suggestion in d.suggestions:
+        line += f"  \n  try: {suggestion_line(suggestion)}"
     return line
 
 

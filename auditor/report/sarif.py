@@ -17,6 +17,7 @@ from urllib.parse import quote
 from auditor.decide.records import DecidedFinding, Report, RuleInfo
 from auditor.report.as_json import dumps
 from auditor.report.rounding import significant
+from auditor.report.suggestion_view import suggestion_record
 from auditor.rules.finding import Severity
 
 SARIF_VERSION = "2.1.0"
@@ -104,6 +105,8 @@ def _result(d: DecidedFinding, index: int, uri: str, failing: bool) -> dict[str,
             "default_severity": f.severity.label, "failing": failing,
         },
     }
+    if d.suggestions:  # a fix description only: SARIF's fixes[] would need artifactChanges
+        result["properties"]["suggestions"] = [suggestion_record(s) for s in d.suggestions]
     if f.sensor:
         result["locations"][0]["logicalLocations"] = [{"name": f.sensor, "kind": "object"}]
     if d.waived:

@@ -18,6 +18,7 @@ from rich.table import Table
 from rich.text import Text
 
 from auditor.decide.records import DecidedFinding, Report, RuleInfo
+from auditor.report.suggestion_view import effect_text
 from auditor.report.text_electrodes import ORDERS, ordered_sensors, ratio_bar, sensor_table
 from auditor.report.text_fit import stream_width
 from auditor.report.text_lumped import render_lumped_lines
@@ -82,6 +83,9 @@ def _finding_rows(grid: Table, d: DecidedFinding) -> None:
         grid.add_row("", Text(f"waived: {d.waived}", style="dim"))
     if d.in_baseline:
         grid.add_row("", Text("in the baseline: accepted earlier, does not fail", style="dim"))
+    for suggestion in d.suggestions:
+        grid.add_row("try", Text(suggestion.change))
+        grid.add_row("", Text(effect_text(suggestion, sep=" · "), style="dim"))
 
 
 def _rule_block(console: Console, rule_id: str, group: list[DecidedFinding],

@@ -40,6 +40,11 @@ def test_demo_text_run_exits_0_and_says_it_is_a_demo(capsys: pytest.CaptureFixtu
     printed = set(out.splitlines())
     stale = [line for line in sample.splitlines() if line.strip() != "…" and line not in printed]
     assert not stale, f"README sample lines the demo no longer prints: {stale}"
+    # and the "Fix it" sample: a finding with its suggested change
+    fix_it = readme.split("`padaudit demo --color never`, one finding with its suggestion", 1)[1]
+    fix_it = fix_it.split("```text\n", 1)[1].split("```", 1)[0]
+    stale = [line for line in fix_it.splitlines() if line not in printed]
+    assert not stale, f"README fix-it lines the demo no longer prints: {stale}"
 
 
 @pytest.mark.parametrize("planted", PLANTED["planted"], ids=lambda p: p["problem"])
