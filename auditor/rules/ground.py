@@ -12,6 +12,7 @@ from auditor.rules.groups import in_one_group
 from auditor.rules.registry import RuleCall, board_rule, sensor_rule
 from auditor.rules.repeated import one_for_all
 from auditor.rules.sense_path import off_board
+from auditor.sensors.cues import is_ground_name
 from auditor.sensors.model import LayerShadow, Sensor
 from auditor.sensors.noisy import is_shield_net
 
@@ -109,20 +110,30 @@ def copper_under_electrode(call: RuleCall) -> Iterator[Finding]:
     by_pour: dict[tuple[str, str, tuple[str, ...]], list[tuple[Sensor, LayerShadow]]] = {}
     for sensor in call.board.sensors:
         for shadow in _dense_shadows(sensor, call):
-            by_pour.setdefault((shadow.layer, shadow.fill, shadow.nets), []).append(
+            by_pour.setdefault((shadow.layer, shadow.fill, _pour_nets(shadow)), []).append(
                 (sensor, shadow))
-    for (layer, fill, nets), found in sorted(by_pour.items()):
+    for (layer, fill, _), found in sorted(by_pour.items()):
         sensor, shadow = found[0]
-        fills = [s.fill_ratio for _, s in found]
+        fills = [100 * s.fill_ratio for _, s in found]
+        low, high = f"{min(fills):.0f}", f"{max(fills):.0f}"
         single = (f"{fill} copper on {layer} covers {100 * shadow.shadowed_fraction:.0f} % "
                   f"of the electrode with {100 * shadow.fill_ratio:.0f} % fill (limit "
                   f"{100 * max_fill:.0f} %)")
-        many = (f"electrodes lie over {fill} copper on {layer} with {100 * min(fills):.0f}-"
-                f"{100 * max(fills):.0f} % fill (limit {100 * max_fill:.0f} %)")
+        many = (f"electrodes lie over {fill} copper on {layer} with "
+                f"{low if low == high else low + '-' + high} % fill (limit "
+                f"{100 * max_fill:.0f} %)")
         measured = (("shadowed_fraction", shadow.shadowed_fraction),
-                    ("fill_ratio", max(fills)), ("max_fill_ratio", max_fill))
-        yield one_for_all(call, [s for s, _ in found], single, many, extra_nets=nets,
+                    ("fill_ratio", max(fills) / 100), ("max_fill_ratio", max_fill))
+        yield one_for_all(call, [s for s, _ in found], single, many,
+                          extra_nets=sorted({n for _, s in found for n in s.nets}),
                           measured=measured, layer=layer)
+
+
+def _pour_nets(shadow: LayerShadow) -> tuple[str, ...]:
+    """The pour a shadow belongs to: its ground nets (the tracks that also
+    pass under one electrode or another do not make it another pour)."""
+    grounds = tuple(n for n in shadow.nets if is_ground_name(n))
+    return grounds or shadow.nets
 
 
 def _dense_shadows(sensor: Sensor, call: RuleCall) -> Iterator[LayerShadow]:
