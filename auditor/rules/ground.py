@@ -12,8 +12,7 @@ from auditor.rules.groups import in_one_group
 from auditor.rules.registry import RuleCall, board_rule, sensor_rule
 from auditor.rules.repeated import listed, one_for_all
 from auditor.rules.sense_path import off_board
-from auditor.sensors.cues import is_ground_name
-from auditor.sensors.model import LayerShadow, Sensor
+from auditor.sensors.model import Sensor
 from auditor.sensors.noisy import is_shield_net
 
 
@@ -91,7 +90,7 @@ def ground_gap_wide(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
             (("gap_mm", gap_mm), ("max_mm", limit_mm)))
 
 
-@board_rule(
+@sensor_rule(
     "copper-under-electrode",
     title="Solid or too-dense copper under the electrode",
     fix="Under the electrode use a ground hatch of at most the profile's fill ratio, or no "
@@ -99,47 +98,14 @@ def ground_gap_wide(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     severity=Severity.WARNING,
     thresholds=("under_shadow_min_fraction", "under_fill_max_ratio"),
 )
-def copper_under_electrode(call: RuleCall) -> Iterator[Finding]:
+def copper_under_electrode(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     """Copper on another layer under the pad forms a parallel-plate capacitor
     with it through the board: with a 1.6 mm FR-4 board and a solid plane the
     baseline can exceed the controller's range and the relative change under a
     finger collapses. A hatch lowers that in proportion to its fill. A driven
-    shield under the pad is at the pad's own potential and is exempt. One pour
-    under many electrodes is one cause: one finding lists them all."""
-    max_fill = call.limits["under_fill_max_ratio"]
-    by_pour: dict[tuple[str, str, tuple[str, ...]], list[tuple[Sensor, LayerShadow]]] = {}
-    for sensor in call.board.sensors:
-        for shadow in _dense_shadows(sensor, call):
-            by_pour.setdefault((shadow.layer, shadow.fill, _pour_nets(shadow)), []).append(
-                (sensor, shadow))
-    for (layer, fill, _), found in sorted(by_pour.items()):
-        sensor, shadow = found[0]
-        fills = [100 * s.fill_ratio for _, s in found]
-        low, high = f"{min(fills):.0f}", f"{max(fills):.0f}"
-        single = (f"{fill} copper on {layer} covers {100 * shadow.shadowed_fraction:.0f} % "
-                  f"of the electrode with {100 * shadow.fill_ratio:.0f} % fill (limit "
-                  f"{100 * max_fill:.0f} %)")
-        many = (f"electrodes lie over {fill} copper on {layer} with "
-                f"{low if low == high else low + '-' + high} % fill (limit "
-                f"{100 * max_fill:.0f} %)")
-        measured = (("shadowed_fraction", shadow.shadowed_fraction),
-                    ("fill_ratio", max(fills) / 100), ("max_fill_ratio", max_fill))
-        yield one_for_all(call, [s for s, _ in found], single, many,
-                          extra_nets=sorted({n for _, s in found for n in s.nets}),
-                          measured=measured, layer=layer)
-
-
-def _pour_nets(shadow: LayerShadow) -> tuple[str, ...]:
-    """The pour a shadow belongs to: its ground nets (the tracks that also
-    pass under one electrode or another do not make it another pour)."""
-    grounds = tuple(n for n in shadow.nets if is_ground_name(n))
-    return grounds or shadow.nets
-
-
-def _dense_shadows(sensor: Sensor, call: RuleCall) -> Iterator[LayerShadow]:
-    """The copper under ``sensor`` denser than the profile allows."""
+    shield under the pad is at the pad's own potential and is exempt."""
     surround = sensor.surroundings
-    if surround is None or sensor.kind not in TOUCH_KINDS:
+    if surround is None:
         return
     min_fraction = call.limits["under_shadow_min_fraction"]
     max_fill = call.limits["under_fill_max_ratio"]
@@ -148,7 +114,14 @@ def _dense_shadows(sensor: Sensor, call: RuleCall) -> Iterator[LayerShadow]:
                 or (shadow.nets and all(is_shield_net(n) for n in shadow.nets)):
             continue  # a driven shield under the pad is there to cut Cp, not add it
         if shadow.fill_ratio > max_fill + 1e-9:
-            yield shadow
+            yield call.finding(
+                f"{shadow.fill} copper on {shadow.layer} covers "
+                f"{100 * shadow.shadowed_fraction:.0f} % of the electrode with "
+                f"{100 * shadow.fill_ratio:.0f} % fill (limit {100 * max_fill:.0f} %)",
+                sensor,
+                (("shadowed_fraction", shadow.shadowed_fraction),
+                 ("fill_ratio", shadow.fill_ratio), ("max_fill_ratio", max_fill)),
+                nets=sensor.nets + shadow.nets, layer=shadow.layer)
 
 
 @sensor_rule(

@@ -101,7 +101,6 @@ def test_generator_output_is_committed(tmp_path: Path) -> None:
     ("no-series-resistors", "series-resistor-missing"),
     ("pasted-electrodes", "electrode-paste"),
     ("unrouted-electrodes", "trace-unfollowed"),
-    ("solid-plane-under-all", "copper-under-electrode"),
     ("two-sliders-side-by-side", "electrodes-too-close"),
     ("backlit-keys", "noisy-part-near"),
 ])
