@@ -95,6 +95,11 @@ def demo_audit(repeat: int, against: Path | None) -> None:
         new, old = (min(r[1] for r in runs[name]) for name, _ in trees)
         print(f"  CPU ratio this/against {new / old:.3f}; wall ratio "
               f"{min(r[0] for r in runs['this tree']) / min(r[0] for r in runs['against']):.3f}")
+        # Each repetition ran the two trees back to back, so the ratio of one
+        # pair shares its load; their spread shows how far the load moved.
+        pairs = sorted(a[1] / b[1] for a, b in zip(runs["this tree"], runs["against"],
+                                                    strict=True))
+        print("  CPU ratio per back-to-back pair: " + ", ".join(f"{r:.3f}" for r in pairs))
         _print_changes(electrode_values(outputs["this tree"]), electrode_values(outputs["against"]))
 
 
@@ -225,6 +230,7 @@ def main() -> None:
     print(f"load average before the run: {os.getloadavg()[0]:.2f} on {os.cpu_count()} CPUs "
           "(other work on the machine inflates wall times; CPU times are steadier)")
     demo_audit(args.repeat, args.against)
+    print(f"load average after the demo audits: {os.getloadavg()[0]:.2f}")
     if args.demo_only:
         return
     window_case()

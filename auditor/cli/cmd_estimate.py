@@ -16,8 +16,9 @@ import sys
 
 from auditor.cli.options import add_overlay, add_power
 from auditor.cli.wrap import write_lines
+from auditor.config.limits import LIMITS
 from auditor.config.model import Overlay
-from auditor.config.overrides import MIN_OVERLAY_MM, parse_overlay_spec
+from auditor.config.overrides import parse_overlay_spec
 from auditor.decide.cautions import cautions_for
 from auditor.errors import UsageError
 from auditor.field.api import BoardLayer, PadSetup, PadSolve, solve_pad
@@ -31,8 +32,6 @@ from auditor.report.estimate_doc import (
 )
 
 _MAX_SWEEP = 50
-_MAX_PAD_DIAMETER_MM = 1000.0  # 1 m; common practice, no source
-_MAX_VALUE = 1000.0  # any length option (mm), εr or pF; common practice, no source
 #: Cells of ``--precise``: 0.25 mm keeps the round pad within about 0.5 % of
 #: the quick solve (tests/unit/solve/test_precise.py) at about 1.5 s a pad.
 _PRECISE_CELL_MM = 0.25
@@ -80,65 +79,37 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
     p.add_argument("--json", action="store_true", help="print JSON instead of text")
 
 
-def _number(option: str, text: str, low: float | None = 0.0, inclusive: bool = False) -> float:
+def _number(option: str, text: str, name: str) -> float:
+    """``text`` as a number within ``LIMITS[name]`` (the table the
+    configuration checks too)."""
     try:
         value = float(text)
     except ValueError:
         raise UsageError(f"{option}: expected a number, got {text!r}") from None
-    if not math.isfinite(value) or (low is not None and (value < low or
-                                                         (value == low and not inclusive))):
-        bound = f">= {low:g}" if inclusive else f"> {low:g}"
-        raise UsageError(f"{option}: expected a finite number {bound}, got {text!r}")
-    if value > _MAX_VALUE:
-        # Far past any board; the mesh would not fit in floating point.
-        raise UsageError(f"{option}: {value:g} is larger than {_MAX_VALUE:g}, the largest "
-                         "value estimated")
+    problem = LIMITS[name].problem(value)
+    if problem is not None:
+        raise UsageError(f"{option}: {problem}")
     return value
 
 
-def _fill(option: str, text: str) -> float:
-    value = _number(option, text, inclusive=True)
-    if value > 1.0:
-        raise UsageError(f"{option}: expected a coverage within 0..1, got {text!r}")
-    return value
-
-
-def _optional(option: str, text: str) -> float | None:
-    return None if text.strip().lower() == "none" else _number(option, text)
-
-
-def _plane_depth(text: str) -> float | None:
-    depth_mm = _optional("--plane-below", text)
-    if depth_mm is not None and depth_mm < MIN_OVERLAY_MM:
-        # The graded mesh cannot resolve a thinner dielectric and returned a far
-        # too small Cp without complaint.
-        raise UsageError(f"--plane-below: {depth_mm:g} mm is closer than {MIN_OVERLAY_MM:g} "
-                         "mm (1 µm)")
-    return depth_mm
+def _optional(option: str, text: str, name: str) -> float | None:
+    return None if text.strip().lower() == "none" else _number(option, text, name)
 
 
 def _diameters(text: str) -> tuple[float, ...]:
     parts = text.split(":")
     if len(parts) == 1:
-        return _sizeable((_number("--pad-diameter", text),))
+        return (_number("--pad-diameter", text, "estimate.pad_diameter_mm"),)
     if len(parts) != 3:
         raise UsageError(f"--pad-diameter: expected MM or start:stop:step, got {text!r}")
-    start, stop, step = (_number("--pad-diameter", p) for p in parts)
+    start, stop, step = (_number("--pad-diameter", p, "estimate.pad_diameter_mm")
+                         for p in parts)
     if stop < start:
         raise UsageError(f"--pad-diameter: stop {stop:g} is below start {start:g}")
     count = int(math.floor((stop - start) / step + 1e-9)) + 1
     if count > _MAX_SWEEP:
         raise UsageError(f"--pad-diameter: {count} steps, at most {_MAX_SWEEP} allowed")
-    return _sizeable(tuple(round(start + i * step, 9) for i in range(count)))
-
-
-def _sizeable(diameters: tuple[float, ...]) -> tuple[float, ...]:
-    # Past this the mesh no longer fits in floating point and the solver fails
-    # inside; no printed board is that large anyway.
-    if max(diameters) > _MAX_PAD_DIAMETER_MM:
-        raise UsageError(f"--pad-diameter: {max(diameters):g} mm is larger than "
-                         f"{_MAX_PAD_DIAMETER_MM:g} mm, the largest pad estimated")
-    return diameters
+    return tuple(round(start + i * step, 9) for i in range(count))
 
 
 def _overlay_label(overlay: Overlay) -> str:
@@ -151,23 +122,25 @@ def _overlay_label(overlay: Overlay) -> str:
 
 
 def _setup(args: argparse.Namespace, diameter_mm: float, overlay: Overlay) -> PadSetup:
-    gap = _optional("--gap", args.gap)
+    def number(option: str, name: str) -> float:
+        return _number(option, getattr(args, option[2:].replace("-", "_")), f"estimate.{name}")
+
+    gap = _optional("--gap", args.gap, "estimate.gap_mm")
     radius = diameter_mm / 2
-    outer = radius + (gap or 0.0) + _number("--ground-width", args.ground_width)
+    outer = radius + (gap or 0.0) + number("--ground-width", "ground_width_mm")
     return PadSetup(
         pad_area_mm2=math.pi * radius ** 2, gap_mm=gap, ground_outer_mm=outer,
-        plane_depth_mm=_plane_depth(args.plane_below),
-        plane_fill=_fill("--plane-fill", args.plane_fill),
-        plane_hatch_pitch_mm=_number("--hatch-pitch", args.hatch_pitch),
-        board_layers=(BoardLayer(_number("--board-thickness", args.board_thickness),
-                                 _number("--board-er", args.board_er, low=1.0,
-                                         inclusive=True)),),
+        plane_depth_mm=_optional("--plane-below", args.plane_below, "estimate.plane_depth_mm"),
+        plane_fill=number("--plane-fill", "plane_fill"),
+        plane_hatch_pitch_mm=number("--hatch-pitch", "hatch_pitch_mm"),
+        board_layers=(BoardLayer(number("--board-thickness", "board_thickness_mm"),
+                                 number("--board-er", "board_er")),),
         pad_side=args.pad_side, overlay_mm=overlay.thickness_mm, overlay_er=overlay.epsilon_r,
-        air_gap_mm=_number("--air-gap", args.air_gap, inclusive=True),
-        finger_diameter_mm=_optional("--finger", args.finger),
-        finger_height_mm=_number("--finger-height", args.finger_height, inclusive=True),
-        power=args.power, body_to_earth_pf=_number("--body-pf", args.body_pf),
-        ground_fill=_fill("--ground-fill", args.ground_fill))
+        air_gap_mm=_number("--air-gap", args.air_gap, "air_gap_mm"),
+        finger_diameter_mm=_optional("--finger", args.finger, "estimate.finger_diameter_mm"),
+        finger_height_mm=number("--finger-height", "finger_height_mm"),
+        power=args.power, body_to_earth_pf=number("--body-pf", "body_to_earth_pf"),
+        ground_fill=number("--ground-fill", "ground_fill"))
 
 
 def _precise_solve(setup: PadSetup, cell_mm: float) -> PadSolve:
@@ -188,7 +161,7 @@ def run(args: argparse.Namespace) -> int:
     if args.cell is not None and not args.precise:
         raise UsageError("--cell: sets the cells of the --precise solve; add --precise")
     if args.precise:
-        cell_mm = _number("--cell", args.cell or str(_PRECISE_CELL_MM))
+        cell_mm = _number("--cell", args.cell or str(_PRECISE_CELL_MM), "estimate.cell_mm")
         records = [with_precise(rec, _precise_solve(s, cell_mm))
                    for rec, s in zip(records, setups, strict=True)]
     cautions = cautions_for(args.power)

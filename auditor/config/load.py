@@ -9,7 +9,6 @@ file and, where possible, the line.
 
 from __future__ import annotations
 
-import math
 from collections.abc import Callable, Mapping
 from dataclasses import replace
 from pathlib import Path
@@ -18,11 +17,13 @@ from typing import Any, cast
 # The module, not its names: profiles read TOML through this package, and whichever
 # of the two is imported first finds the other half-initialised.
 from auditor.config import profiles
+from auditor.config.limits import GENERIC_THRESHOLD, LIMITS
 from auditor.config.model import Config, Overlay
 from auditor.config.toml_positions import read_toml
 from auditor.config.values import (
     ConfigText,
     choice,
+    limited,
     number,
     overlay_from_table,
     strings,
@@ -122,6 +123,10 @@ def _profile(value: Any, where: ConfigText) -> str:
     if not isinstance(value, str) or not value.strip():
         raise where.error("profile must be a profile name or a path to a .toml file",
                           "profile")
+    try:  # here, so that a wrong name is reported at this file's line
+        profiles.resolve_profile(value.strip(), where.path.parent)
+    except ConfigError as exc:
+        raise where.error(exc.message, "profile") from None
     return value.strip()
 
 
@@ -132,7 +137,16 @@ def _overlay(value: Any, where: ConfigText) -> Overlay:
 def _sensors(value: Any, where: ConfigText) -> Any:
     if not isinstance(value, dict):
         raise where.error("sensors must be a table", "sensors")
-    return selection_from_mapping(value, where.sub("sensors").located)
+    sub = where.sub("sensors")
+    for key, item in value.items():
+        if f"sensors.{key}" in LIMITS:
+            limited(item, key, sub, f"sensors.{key}")
+        elif isinstance(item, int | float) and not isinstance(item, bool):
+            # A numeric key without a row yet: finite, from 0, within float.
+            problem = GENERIC_THRESHOLD.problem(item)
+            if problem is not None:
+                raise sub.error(f"{key} {problem}", key)
+    return selection_from_mapping(value, sub.located)
 
 
 def _severity(value: Any, where: ConfigText) -> dict[str, str]:
@@ -146,16 +160,9 @@ def _severity(value: Any, where: ConfigText) -> dict[str, str]:
 def _thresholds(value: Any, where: ConfigText) -> dict[str, Any]:
     if not isinstance(value, dict):
         raise where.error("thresholds must be a table of name = number", "thresholds")
-    known = profiles.known_thresholds()
     sub = where.sub("thresholds")
     for key, item in value.items():
-        if key not in known:
-            raise sub.error(f"unknown threshold {key!r}; valid thresholds: "
-                            + ", ".join(known), key)
-        if not isinstance(item, bool | int | float) or not math.isfinite(item):
-            raise sub.error(f"threshold {key!r} must be a finite number or true/false", key)
-        if profiles.range_problem(key, item):
-            raise sub.error(profiles.range_problem(key, item), key)
+        profiles.check_threshold(key, item, where.path, sub.line_of(key))
     return dict(sorted(value.items()))
 
 
@@ -166,7 +173,7 @@ def _fail_on(value: Any, where: ConfigText) -> Severity:
 _READERS: dict[str, Callable[[Any, ConfigText], Any]] = {
     "profile": _profile,
     "overlay": _overlay,
-    "air_gap_mm": lambda v, w: number(v, "air_gap_mm", w, minimum=0.0),
+    "air_gap_mm": lambda v, w: number(v, "air_gap_mm", w),
     "touch_side": lambda v, w: cast(TouchSide, choice(v, TOUCH_SIDES, "touch_side", w)),
     "power": lambda v, w: cast(PowerPreset, choice(v, POWER_PRESETS, "power", w)),
     "sensors": _sensors,

@@ -6,16 +6,17 @@ import math
 from dataclasses import replace
 from typing import cast
 
+from auditor.config.limits import LIMITS
 from auditor.config.model import Config, Overlay
+from auditor.config.profiles import resolve_profile
 from auditor.config.values import overlay_of_material
-from auditor.errors import UsageError
+from auditor.errors import ConfigError, UsageError
 from auditor.model.vocabulary import POWER_PRESETS, TOUCH_SIDES, PowerPreset, TouchSide
 from auditor.rules.finding import Severity
 
-#: Thinner covers: the finger touches the pad and the graded mesh fails.
-MIN_OVERLAY_MM = 0.001
-#: Thicker covers are far past any product; the mesh would not fit in floating point.
-MAX_OVERLAY_MM = 1000.0
+#: The cover's range, from the one table of limits (why: there).
+MIN_OVERLAY_MM = LIMITS["overlay.thickness_mm"].minimum
+MAX_OVERLAY_MM = LIMITS["overlay.thickness_mm"].maximum
 _SPEC_HELP = "expected MM:MATERIAL, MM:ER or none, e.g. 2:acrylic or 1.5:3.1"
 
 
@@ -56,8 +57,9 @@ def parse_overlay_spec(text: str, option: str = "--overlay") -> Overlay:
             return overlay_of_material(thickness_mm, what)
         except UsageError as exc:
             raise fail(str(exc)) from None
-    if not 1.0 <= epsilon_r < math.inf:
-        raise fail("relative permittivity must be a finite number of at least 1")
+    problem = LIMITS["overlay.epsilon_r"].problem(epsilon_r)
+    if problem is not None:
+        raise fail(f"relative permittivity {problem}")
     return Overlay(thickness_mm, epsilon_r, "")
 
 
@@ -73,6 +75,10 @@ def with_overrides(config: Config, *, profile: str | None = None, overlay: str |
     """``config`` with every given command-line value replacing the file's."""
     changes: dict[str, object] = {}
     if profile:
+        try:  # a profile path on the command line is relative to cwd
+            resolve_profile(profile)
+        except ConfigError as exc:
+            raise UsageError(f"--profile {profile!r}: {exc.message}") from None
         changes["profile"] = profile
         changes["base_dir"] = None  # a profile path on the command line is relative to cwd
     if overlay:

@@ -14,12 +14,12 @@ them in either place.
 
 from __future__ import annotations
 
-import math
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+from auditor.config.limits import threshold_problem
 from auditor.config.toml_positions import key_comments, key_line, read_toml
 from auditor.errors import ConfigError
 from auditor.rules.context import ThresholdValue
@@ -40,20 +40,6 @@ MEASUREMENT_THRESHOLDS: Mapping[str, str] = {
     "pin_pf": "the controller pin's own capacitance in pF, added to every "
               "self-capacitance electrode's Cp total",
 }
-
-#: Thresholds with a physical range: (lowest, highest) accepted value.
-#: ``pin_pf``: a pin of more than 50 pF is a typing error, not a pin.
-THRESHOLD_RANGES: Mapping[str, tuple[float, float]] = {"pin_pf": (0.0, 50.0)}
-
-
-def range_problem(key: str, value: ThresholdValue) -> str:
-    """Why ``value`` is outside ``key``'s range (``""`` when it is fine)."""
-    if key not in THRESHOLD_RANGES:
-        return ""
-    low, high = THRESHOLD_RANGES[key]
-    if isinstance(value, bool) or not low <= value <= high:
-        return f"threshold {key!r} must be a number from {low:g} to {high:g} (got {value!r})"
-    return ""
 
 LEVELS = ("error", "warning", "info", "off")
 
@@ -123,20 +109,36 @@ def load_profile(name_or_path: str, base_dir: Path | None = None) -> Profile:
     """Load a built-in profile by name, or a profile file by path.
 
     A value containing ``/`` or ending in ``.toml`` is a path (relative to
-    ``base_dir``); anything else is a built-in name.
+    ``base_dir``); anything else is a built-in name. A profile without
+    ``extends`` extends the built-in ``default`` (only ``default`` itself is a
+    root), so every threshold a rule reads has a value.
     """
-    return _load(_resolve(name_or_path, base_dir), ())
+    return _load(resolve_profile(name_or_path, base_dir), ())
 
 
-def _resolve(name_or_path: str, base_dir: Path | None) -> Path:
+def resolve_profile(name_or_path: str, base_dir: Path | None = None) -> Path:
+    """The file of a profile name or path.
+
+    Raises
+    ------
+    ConfigError
+        When there is no such file or built-in profile; the error's path is
+        the name as given, for callers to place at their own line.
+    """
     if "/" in name_or_path or "\\" in name_or_path or name_or_path.endswith(".toml"):
         path = Path(name_or_path)
         if not path.is_absolute() and base_dir is not None:
             path = base_dir / path
         if not path.is_file():
-            raise ConfigError(path, "profile file not found")
+            raise ConfigError(name_or_path, f"profile file {str(path)!r} not found")
         return path
     return builtin_profile_path(name_or_path)
+
+
+def _is_root(path: Path) -> bool:
+    """True for the built-in ``default`` profile, the one profile extending none."""
+    return any((folder / "default.toml").resolve() == path.resolve()
+               for folder in profile_dirs())
 
 
 def _load(path: Path, seen: tuple[Path, ...]) -> Profile:
@@ -148,21 +150,30 @@ def _load(path: Path, seen: tuple[Path, ...]) -> Profile:
     _check_keys(table, text, path)
     own_thresholds = _thresholds(table.get("thresholds", {}), text, path)
     own_levels = _levels(table.get("rules", {}), text, path)
-    origins = key_comments(text, "thresholds")
-    name = path.stem
-    parent_name = table.get("extends")
-    if parent_name is None:
-        return Profile(name, str(table.get("description", "")), own_thresholds, own_levels,
-                       {k: origins.get(k, "") for k in own_thresholds}, (name,))
-    if not isinstance(parent_name, str):
-        raise ConfigError(path, "extends must be a profile name or path",
-                          key_line(text, "extends"))
-    parent = _load(_resolve(parent_name, path.parent), (*seen, resolved))
+    comments = key_comments(text, "thresholds")
+    origins = {k: comments.get(k, "") for k in own_thresholds}
+    description = table.get("description")
+    if description is not None and not isinstance(description, str):
+        raise ConfigError(path, "description must be a string", key_line(text, "description"))
+    if _is_root(path):
+        return Profile(path.stem, description or "", own_thresholds, own_levels, origins,
+                       (path.stem,))
+    parent = _load(_parent_path(table.get("extends", "default"), path, text),
+                   (*seen, resolved))
     return Profile(
-        name, str(table.get("description", parent.description)),
+        path.stem, description if description is not None else parent.description,
         {**parent.thresholds, **own_thresholds}, {**parent.levels, **own_levels},
-        {**parent.origins, **{k: origins.get(k, "") for k in own_thresholds}},
-        (name, *parent.chain))
+        {**parent.origins, **origins}, (path.stem, *parent.chain))
+
+
+def _parent_path(parent_name: Any, path: Path, text: str) -> Path:
+    line = key_line(text, "extends")
+    if not isinstance(parent_name, str) or not parent_name.strip():
+        raise ConfigError(path, "extends must be a profile name or path", line)
+    try:
+        return resolve_profile(parent_name.strip(), path.parent)
+    except ConfigError as exc:
+        raise ConfigError(path, f"extends: {exc.message}", line) from None
 
 
 def _check_keys(table: Mapping[str, Any], text: str, path: Path) -> None:
@@ -175,20 +186,21 @@ def _check_keys(table: Mapping[str, Any], text: str, path: Path) -> None:
 def _thresholds(raw: Any, text: str, path: Path) -> dict[str, ThresholdValue]:
     if not isinstance(raw, dict):
         raise ConfigError(path, "[thresholds] must be a table", key_line(text, "thresholds"))
-    known = known_thresholds()
-    out: dict[str, ThresholdValue] = {}
     for key, value in raw.items():
-        line = key_line(text, key, "thresholds")
-        if key not in known:
-            raise ConfigError(path, f"unknown threshold {key!r}; valid thresholds: "
-                              + ", ".join(known), line)
-        if not isinstance(value, (bool, int, float)) or not math.isfinite(value):
-            raise ConfigError(path, f"threshold {key!r} must be a finite number or "
-                                    "true/false", line)
-        if range_problem(key, value):
-            raise ConfigError(path, range_problem(key, value), line)
-        out[key] = value
-    return out
+        check_threshold(key, value, path, key_line(text, key, "thresholds"))
+    return dict(raw)
+
+
+def check_threshold(name: str, value: Any, path: str | Path, line: int | None) -> None:
+    """Validate one threshold: a known name, a value of its type within its
+    range (:mod:`auditor.config.limits`). Used by profiles and the config."""
+    known = known_thresholds()
+    if name not in known:
+        raise ConfigError(path, f"unknown threshold {name!r}; valid thresholds: "
+                          + ", ".join(known), line)
+    problem = threshold_problem(name, value)
+    if problem is not None:
+        raise ConfigError(path, f"threshold {name} {problem}", line)
 
 
 def _levels(raw: Any, text: str, path: Path) -> dict[str, str]:

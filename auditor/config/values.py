@@ -2,12 +2,12 @@
 
 from __future__ import annotations
 
-import math
 from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
+from auditor.config.limits import LIMITS
 from auditor.config.model import Overlay, Waiver
 from auditor.config.toml_positions import header_lines, key_line
 from auditor.errors import ConfigError, UsageError
@@ -59,26 +59,33 @@ def choice(value: Any, choices: Sequence[str], key: str, where: ConfigText) -> s
     return value.strip().lower()
 
 
-def number(value: Any, key: str, where: ConfigText, minimum: float | None = None,
-           above: float | None = None) -> float:
-    """A number, optionally at least ``minimum`` or strictly above ``above``."""
-    if isinstance(value, bool) or not isinstance(value, int | float) or not math.isfinite(value):
-        raise where.error(f"{key} must be a finite number (got {value!r})", key)
-    if minimum is not None and value < minimum:
-        raise where.error(f"{key} must be at least {minimum:g} (got {value!r})", key)
-    if above is not None and value <= above:
-        raise where.error(f"{key} must be more than {above:g} (got {value!r})", key)
-    return float(value)
+def limited(value: Any, key: str, where: ConfigText, name: str | None = None) -> Any:
+    """``value`` checked against :data:`~auditor.config.limits.LIMITS` entry
+    ``name`` (default ``key``); the error names ``key``'s line."""
+    problem = LIMITS[name or key].problem(value)
+    if problem is not None:
+        raise where.error(f"{key} {problem}", key)
+    return value
+
+
+def number(value: Any, key: str, where: ConfigText, name: str | None = None) -> float:
+    """A number within the range of ``LIMITS[name or key]``, as a float."""
+    return float(limited(value, key, where, name))
 
 
 def strings(value: Any, key: str, where: ConfigText, single: bool = False) -> tuple[str, ...]:
-    """A string or (unless ``single``) a list of strings."""
+    """A string or (unless ``single``) a list of strings, none of them empty."""
+    found: tuple[str, ...] | None = None
     if isinstance(value, str):
-        return (value,)
-    if not single and isinstance(value, list) and all(isinstance(v, str) for v in value):
-        return tuple(value)
-    kind = "a string" if single else "a string or a list of strings"
-    raise where.error(f"{key} must be {kind}", key)
+        found = (value,)
+    elif not single and isinstance(value, list) and all(isinstance(v, str) for v in value):
+        found = tuple(value)
+    if found is None:
+        kind = "a string" if single else "a string or a list of strings"
+        raise where.error(f"{key} must be {kind}", key)
+    if any(not text.strip() for text in found):
+        raise where.error(f"{key} must not be empty (or blank)", key)
+    return found
 
 
 def overlay_from_table(value: Any, where: ConfigText) -> Overlay:
@@ -92,12 +99,12 @@ def overlay_from_table(value: Any, where: ConfigText) -> Overlay:
             raise sub.error(f"unknown overlay key {key!r}; valid keys: "
                             + ", ".join(OVERLAY_KEYS), key)
     thickness = number(value.get("thickness_mm", Overlay().thickness_mm), "thickness_mm",
-                       sub, minimum=0.0)
+                       sub, "overlay.thickness_mm")
     if "epsilon_r" in value:
         if "material" in value:
             raise sub.error("give either material or epsilon_r, not both", "epsilon_r")
-        return Overlay(thickness, number(value["epsilon_r"], "epsilon_r", sub, minimum=1.0),
-                       "")
+        epsilon_r = number(value["epsilon_r"], "epsilon_r", sub, "overlay.epsilon_r")
+        return Overlay(thickness, epsilon_r, "")
     name = strings(value.get("material", Overlay().material), "material", sub, True)[0]
     return overlay_of_material(thickness, name, sub)
 

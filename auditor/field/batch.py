@@ -150,6 +150,9 @@ class PadBatch:
     def _start_helpers(self) -> None:
         context = multiprocessing.get_context("fork")
         self._tasks, self._results = context.Queue(), context.Queue()
+        # Work still in the pipe when the run ends (an interrupt, an error) is
+        # dropped: without this the exit would wait for stopped helpers to read it.
+        self._tasks.cancel_join_thread()
         for _ in range(self._processes - 1):
             helper = context.Process(target=_helper, args=(self._tasks, self._results),
                                      daemon=True)

@@ -18,6 +18,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import lru_cache
 
 import shapely
 from shapely.geometry import Point, box
@@ -186,7 +187,7 @@ def metrics_from_precise(sensor: Sensor, board: Board, config: Config, mapped: F
                                       setup.plane_depth_mm)
     total = cp_pad + cp_trace
     delta = cp_touched - cp_pad
-    quick = solve_pad(setup)
+    quick = _quick_estimate(setup)
     notes = (f"precise: real copper, {cell_mm:g} mm cells, window pad + "
              f"{WINDOW_MARGIN_MM:g} mm; other electrodes held at ground",
              _versus("Cp pad", cp_pad, quick.cp_pad_pf),
@@ -195,6 +196,11 @@ def metrics_from_precise(sensor: Sensor, board: Board, config: Config, mapped: F
     return PadMetrics(cp_pad, cp_trace, total, delta, delta / total, "precise", notes,
                       quick_cp_pad_pf=quick.cp_pad_pf, quick_cp_total_pf=quick.cp_total_pf,
                       quick_delta_c_pf=quick.delta_c_pf)
+
+
+#: The quick estimate shown beside each precise answer: equal pads (slider
+#: segments, a row of buttons) have equal setups and share one solve.
+_quick_estimate = lru_cache(maxsize=64)(solve_pad)
 
 
 def _cell_notes(sensor: Sensor, cell_mm: float) -> tuple[str, ...]:

@@ -76,12 +76,7 @@ def covered_subcells(geometry: shapely.Geometry, grid: CellGrid, subdivisions: i
     point-in-polygon test per point, not one pass over a large pour's
     vertices per cell.
     """
-    x = grid.x0_mm + np.arange(grid.nx + 1) * grid.cell_mm
-    y = grid.y0_mm + np.arange(grid.ny + 1) * grid.cell_mm
-    corner_x, corner_y = np.meshgrid(x, y, indexing="ij")
-    shapely.prepare(geometry)
-    corners = shapely.contains_xy(geometry, corner_x.ravel(), corner_y.ravel())
-    corners = corners.reshape(grid.nx + 1, grid.ny + 1).astype(np.int8)
+    corners = _corners_inside(geometry, grid)
     count = corners[:-1, :-1] + corners[1:, :-1] + corners[:-1, 1:] + corners[1:, 1:]
     shares = (count == 4).astype(float).ravel()
     mixed = np.flatnonzero(((count > 0) & (count < 4)).ravel()).astype(np.int64)
@@ -90,6 +85,29 @@ def covered_subcells(geometry: shapely.Geometry, grid: CellGrid, subdivisions: i
                        dtype=bool).reshape(sub_x.shape)
     shares[mixed] = masks.mean(axis=1) if mixed.size else 0.0
     return np.asarray(shares, dtype=float), mixed, masks
+
+
+def _corners_inside(geometry: shapely.Geometry, grid: CellGrid) -> NDArray[np.int8]:
+    """1 where a cell corner lies inside ``geometry``, shape ``(nx + 1, ny + 1)``.
+
+    Only the corners within the geometry's bounding box are tested: a pad's
+    few hundred instead of the whole window's tens of thousands.
+    """
+    corners = np.zeros((grid.nx + 1, grid.ny + 1), dtype=np.int8)
+    x_min, y_min, x_max, y_max = geometry.bounds
+    first_x = max(math.floor((x_min - grid.x0_mm) / grid.cell_mm), 0)
+    first_y = max(math.floor((y_min - grid.y0_mm) / grid.cell_mm), 0)
+    last_x = min(math.ceil((x_max - grid.x0_mm) / grid.cell_mm), grid.nx)
+    last_y = min(math.ceil((y_max - grid.y0_mm) / grid.cell_mm), grid.ny)
+    if last_x < first_x or last_y < first_y:
+        return corners
+    x = grid.x0_mm + np.arange(first_x, last_x + 1) * grid.cell_mm
+    y = grid.y0_mm + np.arange(first_y, last_y + 1) * grid.cell_mm
+    corner_x, corner_y = np.meshgrid(x, y, indexing="ij")
+    shapely.prepare(geometry)
+    inside = shapely.contains_xy(geometry, corner_x.ravel(), corner_y.ravel())
+    corners[first_x:last_x + 1, first_y:last_y + 1] = inside.reshape(corner_x.shape)
+    return corners
 
 
 def subcell_centres(grid: CellGrid, cells: IntArray, subdivisions: int
