@@ -9,6 +9,7 @@ from auditor.rules.context import EPS_MM
 from auditor.rules.finding import Finding, Severity
 from auditor.rules.groups import in_one_group
 from auditor.rules.registry import RuleCall, board_rule, sensor_rule
+from auditor.rules.repeated import one_for_all
 from auditor.sensors.model import Sensor
 
 
@@ -117,22 +118,25 @@ def electrode_mask_open_covered(sensor: Sensor, call: RuleCall) -> Iterator[Find
                            "(under the cover)", sensor)
 
 
-@sensor_rule(
+@board_rule(
     "electrode-paste",
     title="Solder paste on an electrode",
     fix="Remove the paste layer from the electrode pad so no solder is printed on it.",
     severity=Severity.WARNING,
     thresholds=("electrode_must_be_covered",),
 )
-def electrode_paste(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+def electrode_paste(call: RuleCall) -> Iterator[Finding]:
     """Paste printed on a large pad leaves an uneven solder hump that holds
     the cover off the pad (an air gap of varying height, so varying
-    sensitivity) and is a sign the pad was drawn as a component pad."""
-    if call.limits.flag("electrode_must_be_covered") and sensor.pasted:
-        yield call.finding("electrode has solder paste", sensor)
+    sensitivity) and is a sign the pad was drawn as a component pad. Pads
+    drawn alike (one footprint for every key) are one cause: one finding."""
+    pasted = [s for s in call.board.sensors if s.kind in TOUCH_KINDS and s.pasted]
+    if call.limits.flag("electrode_must_be_covered") and pasted:
+        yield one_for_all(call, pasted, "electrode has solder paste",
+                          "electrodes have solder paste")
 
 
-@sensor_rule(
+@board_rule(
     "electrodes-too-close",
     title="Two electrodes too close to each other",
     fix="Space the electrodes further apart (and by at least the overlay thickness) with "
@@ -140,26 +144,65 @@ def electrode_paste(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     severity=Severity.WARNING,
     thresholds=("electrode_min_spacing_mm",),
 )
-def electrodes_too_close(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+def electrodes_too_close(call: RuleCall) -> Iterator[Finding]:
     """Electrodes closer than a finger's width are touched together and couple
     to each other; the spread of the field through the cover grows with its
     thickness, so spacing must be at least the overlay thickness as well.
-    Segments of one slider or wheel are meant to be close and are exempt."""
-    surround = sensor.surroundings
-    if surround is None or surround.nearest_sensor_mm is None:
-        return
-    other = next((s for s in call.board.sensors if s.name == surround.nearest_sensor), None)
-    if other is not None and (in_one_group(sensor, other) or other.kind not in TOUCH_KINDS):
-        return
+    Segments of one slider or wheel are meant to be close and are exempt. Two
+    sliders (or wheels) laid side by side are one cause: one finding for the
+    pair, listing the segments that are too close."""
     limit_mm = max(call.limits["electrode_min_spacing_mm"],
                    call.board.settings.overlay_thickness_mm)
-    if surround.nearest_sensor_mm < limit_mm - EPS_MM and not _reported_by(other, sensor):
-        yield call.finding(
-            f"{surround.nearest_sensor_mm:.2f} mm from {surround.nearest_sensor}, "
-            f"less than {limit_mm:.2f} mm", sensor,
-            (("spacing_mm", surround.nearest_sensor_mm), ("min_mm", limit_mm)),
-            nets=sensor.nets + (other.nets if other else ()),
-            refs=sensor.refs + (other.refs if other else ()))
+    pairs: dict[tuple[str, str], list[tuple[Sensor, Sensor | None]]] = {}
+    for sensor in call.board.sensors:
+        if _too_close(sensor, call, limit_mm):
+            other = _nearest(sensor, call)
+            key = (sensor.group or sensor.name,
+                   other.group or other.name if other else _nearest_name(sensor))
+            pairs.setdefault(key, []).append((sensor, other))
+    for (_, other_group), found in sorted(pairs.items()):
+        spacings = [_nearest_mm(s) for s, _ in found]
+        others = [o for _, o in found if o is not None]
+        yield one_for_all(
+            call, [s for s, _ in found],
+            f"{min(spacings):.2f} mm from {_nearest_name(found[0][0])}, less than "
+            f"{limit_mm:.2f} mm",
+            f"electrodes are {_span(spacings)} mm from {other_group}'s segments, less than "
+            f"{limit_mm:.2f} mm",
+            extra_refs=[r for o in others for r in o.refs],
+            extra_nets=[n for o in others for n in o.nets],
+            measured=(("spacing_mm", min(spacings)), ("min_mm", limit_mm)))
+
+
+def _nearest_name(sensor: Sensor) -> str:
+    return sensor.surroundings.nearest_sensor if sensor.surroundings else ""
+
+
+def _nearest_mm(sensor: Sensor) -> float:
+    surround = sensor.surroundings
+    return surround.nearest_sensor_mm or 0.0 if surround else 0.0
+
+
+def _nearest(sensor: Sensor, call: RuleCall) -> Sensor | None:
+    return next((s for s in call.board.sensors if s.name == _nearest_name(sensor)), None)
+
+
+def _span(values: list[float]) -> str:
+    low, high = f"{min(values):.2f}", f"{max(values):.2f}"
+    return low if low == high else f"{low}-{high}"
+
+
+def _too_close(sensor: Sensor, call: RuleCall, limit_mm: float) -> bool:
+    """True when the electrode nearest to ``sensor`` is nearer than
+    ``limit_mm``, counts, and has not reported this pair itself."""
+    surround = sensor.surroundings
+    if sensor.kind not in TOUCH_KINDS or surround is None \
+            or surround.nearest_sensor_mm is None:
+        return False
+    other = _nearest(sensor, call)
+    if other is not None and (in_one_group(sensor, other) or other.kind not in TOUCH_KINDS):
+        return False
+    return surround.nearest_sensor_mm < limit_mm - EPS_MM and not _reported_by(other, sensor)
 
 
 @board_rule(

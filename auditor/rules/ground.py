@@ -5,10 +5,12 @@ from __future__ import annotations
 
 from collections.abc import Iterator
 
+from auditor.model.vocabulary import TOUCH_KINDS
 from auditor.rules.context import EPS_MM
 from auditor.rules.finding import Finding, Severity
 from auditor.rules.groups import in_one_group
-from auditor.rules.registry import RuleCall, sensor_rule
+from auditor.rules.registry import RuleCall, board_rule, sensor_rule
+from auditor.rules.repeated import listed, one_for_all
 from auditor.rules.sense_path import off_board
 from auditor.sensors.model import Sensor
 from auditor.sensors.noisy import is_shield_net
@@ -146,7 +148,7 @@ def floating_copper_near(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
                 (("distance_mm", distance_mm), ("min_mm", limit_mm)), x_mm=x_mm, y_mm=y_mm)
 
 
-@sensor_rule(
+@board_rule(
     "noisy-part-near",
     title="Noisy part near an electrode",
     fix="Move LEDs, inductors, regulators and crystals (and their traces) away from the "
@@ -154,21 +156,34 @@ def floating_copper_near(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     severity=Severity.WARNING,
     thresholds=("noisy_part_min_mm",),
 )
-def noisy_part_near(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+def noisy_part_near(call: RuleCall) -> Iterator[Finding]:
     """Switching parts inject charge into a nearby electrode through their
     stray capacitance; the injected charge shows up as noise, or as a false
-    touch when an LED on the same key toggles."""
-    surround = sensor.surroundings
-    if surround is None:
-        return
+    touch when an LED on the same key toggles. A part inside each key's
+    outline (a backlight LED in a hole of every pad) is one design choice:
+    one finding lists the keys."""
     limit_mm = call.limits["noisy_part_min_mm"]
-    for ref, distance_mm in sorted(surround.noisy_parts):
-        if distance_mm < limit_mm - EPS_MM:
-            yield call.finding(
-                f"{ref} is {distance_mm:.2f} mm from the electrode, less than "
-                f"{limit_mm:.2f} mm", sensor,
-                (("distance_mm", distance_mm), ("min_mm", limit_mm)),
-                refs=sensor.refs + (ref,))
+    inside: list[tuple[Sensor, str]] = []
+    for sensor in call.board.sensors:
+        if sensor.surroundings is None or sensor.kind not in TOUCH_KINDS:
+            continue
+        for ref, distance_mm in sorted(sensor.surroundings.noisy_parts):
+            if distance_mm <= EPS_MM:
+                inside.append((sensor, ref))
+            elif distance_mm < limit_mm - EPS_MM:
+                yield call.finding(
+                    f"{ref} is {distance_mm:.2f} mm from the electrode, less than "
+                    f"{limit_mm:.2f} mm", sensor,
+                    (("distance_mm", distance_mm), ("min_mm", limit_mm)),
+                    refs=sensor.refs + (ref,))
+    if inside:
+        sensors = list({s.name: s for s, _ in inside}.values())
+        yield one_for_all(
+            call, sensors,
+            f"{inside[0][1]} is 0.00 mm from the electrode, less than {limit_mm:.2f} mm",
+            f"electrodes hold a noisy part inside their outline "
+            f"({listed(sorted({r for _, r in inside}))})", extra_refs=[r for _, r in inside],
+            measured=(("distance_mm", 0.0), ("min_mm", limit_mm)))
 
 
 @sensor_rule(

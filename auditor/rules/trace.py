@@ -8,7 +8,8 @@ from auditor.model.vocabulary import TOUCH_KINDS
 from auditor.rules.context import EPS_MM
 from auditor.rules.finding import Finding, Severity
 from auditor.rules.groups import in_one_group
-from auditor.rules.registry import RuleCall, sensor_rule
+from auditor.rules.registry import RuleCall, board_rule, sensor_rule
+from auditor.rules.repeated import one_for_all
 from auditor.rules.sense_path import (
     at_crossing,
     at_neighbour,
@@ -19,28 +20,40 @@ from auditor.rules.sense_path import (
     off_board,
     sibling_net,
 )
+from auditor.sensors.cues import is_ground_name
 from auditor.sensors.model import Sensor
 from auditor.sensors.noisy import is_shield_net
 
 
-@sensor_rule(
+@board_rule(
     "trace-unfollowed",
     title="Sense path could not be followed to a controller pin",
     fix="Check the net is routed completely (no unrouted ratsnest, no broken track) and that "
         "the controller is a footprint on the board; set `controller` in the configuration.",
     severity=Severity.WARNING,
 )
-def trace_unfollowed(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+def trace_unfollowed(call: RuleCall) -> Iterator[Finding]:
     """The trace rules (length, vias, neighbours, series resistor) judge the
     followed path only. When it stops short of a controller pin, those rules
-    saw part of the trace, so the sensor must not be reported as clean."""
-    path = sensor.path
-    if path is None:
-        yield call.finding("no sense path was measured for this electrode", sensor)
-    elif not path.complete:
-        yield call.finding(
-            f"the sense path stops after {path.length_mm:.1f} mm before reaching a "
-            "controller pin", sensor, (("length_mm", path.length_mm),))
+    saw part of the trace, so the sensor must not be reported as clean.
+    Electrodes whose net has no track or via at all are one cause (the
+    board is not routed yet) and are reported together."""
+    unrouted: list[Sensor] = []
+    for sensor in call.board.sensors:
+        path = sensor.path
+        if sensor.kind not in TOUCH_KINDS or (path is not None and path.complete):
+            continue
+        if path is None:
+            yield call.finding("no sense path was measured for this electrode", sensor)
+        elif path.length_mm <= EPS_MM and path.vias == 0:
+            unrouted.append(sensor)
+        else:
+            yield call.finding(
+                f"the sense path stops after {path.length_mm:.1f} mm before reaching a "
+                "controller pin", sensor, (("length_mm", path.length_mm),))
+    if unrouted:
+        yield one_for_all(call, unrouted, "the sense net has no track or via: it is not "
+                          "routed", "electrode nets have no track or via (not routed)")
 
 
 @sensor_rule(
@@ -123,7 +136,9 @@ def trace_parallel_run(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     they run together; a signal on the other net then couples straight into
     the measurement. Two sense lines (another electrode's trace, before or
     after its series resistor) are quiet neighbours: they only need a spacing
-    of a few trace widths."""
+    of a few trace widths. A ground beside the trace (any ground net, a
+    second or a connector's return too) carries no signal: it shields, and
+    what it costs is baseline capacitance, which the Cp rules judge."""
     path = sensor.path
     if path is None:
         return
@@ -132,8 +147,8 @@ def trace_parallel_run(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     sense_gap_mm = call.limits["sense_spacing_widths"] * width_mm
     for neighbour in sorted(path.neighbours, key=lambda n: n.net):
         if neighbour.min_distance_mm is None or is_shield_net(neighbour.net) \
-                or sibling_net(sensor, neighbour.net, call):
-            continue  # crossings only, a driven shield, or a segment of its own slider
+                or is_ground_name(neighbour.net) or sibling_net(sensor, neighbour.net, call):
+            continue  # crossings only, a shield, a ground, or a segment of its own slider
         if is_sense(neighbour, call) and neighbour.min_distance_mm >= sense_gap_mm - EPS_MM:
             continue
         if neighbour.parallel_mm > limit_mm + EPS_MM:
@@ -219,23 +234,30 @@ def trace_under_electrode(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
                            nets=sensor.nets + nets_of(other, call))
 
 
-@sensor_rule(
+@board_rule(
     "series-resistor-missing",
     title="No series resistor on the sense line",
     fix="Add a series resistor (typically 470 Ω - 2.2 kΩ) close to the controller pin.",
     severity=Severity.WARNING,
 )
-def series_resistor_missing(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+def series_resistor_missing(call: RuleCall) -> Iterator[Finding]:
     """A series resistor at the controller pin limits ESD current into it and,
     with the pin's capacitance, filters radio-frequency noise picked up by the
     electrode and trace. When the path ends on a connector to an off-board
-    controller, the resistor belongs on the controller's board."""
-    path = sensor.path
-    if path is None or not path.complete or path.series_ref or off_board(path):
-        return
-    yield call.finding(
-        f"the path reaches {path.controller_ref or 'the controller'} without a series part",
-        sensor, refs=sensor.refs + ((path.controller_ref,) if path.controller_ref else ()))
+    controller, the resistor belongs on the controller's board. One cause, one
+    finding: the electrodes wired straight to one controller are reported
+    together (their nets and references all in the finding)."""
+    by_controller: dict[str, list[Sensor]] = {}
+    for sensor in call.board.sensors:
+        path = sensor.path
+        if sensor.kind in TOUCH_KINDS and path is not None and path.complete \
+                and not path.series_ref and not off_board(path):
+            by_controller.setdefault(path.controller_ref, []).append(sensor)
+    for controller, sensors in sorted(by_controller.items()):
+        where = controller or "the controller"
+        yield one_for_all(call, sensors, f"the path reaches {where} without a series part",
+                          f"electrodes reach {where} without a series part",
+                          (controller,) if controller else ())
 
 
 @sensor_rule(

@@ -95,3 +95,20 @@ def test_generator_output_is_committed(tmp_path: Path) -> None:
         committed = FIXTURES / path.name
         assert committed.read_text(encoding="utf-8") == path.read_text(encoding="utf-8"), \
             f"regenerate: python fixtures/make_judging_boards.py ({path.name} differs)"
+
+
+@pytest.mark.parametrize(("name", "rule_id"), [
+    ("no-series-resistors", "series-resistor-missing"),
+    ("pasted-electrodes", "electrode-paste"),
+    ("unrouted-electrodes", "trace-unfollowed"),
+    ("two-sliders-side-by-side", "electrodes-too-close"),
+    ("backlit-keys", "noisy-part-near"),
+])
+def test_one_cause_is_one_finding_with_every_electrode(name: str, rule_id: str) -> None:
+    """One cause repeated on every electrode (wired straight to one
+    controller, paste on every pad, nothing routed) is one finding that
+    names them all (common practice, no source)."""
+    found = [d.finding for d in audited(name).findings if d.finding.rule_id == rule_id]
+    assert len(found) == 1
+    assert set(MANIFEST["cases"][name]["electrode_nets"]) <= set(found[0].nets)
+    assert found[0].message.split()[0] in ("2", "3")
