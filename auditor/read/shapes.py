@@ -72,7 +72,25 @@ def width_of(node: Node, ctx: ReadContext) -> float:
     if width is None:
         stroke = find(node, "stroke")
         width = find(stroke, "width") if stroke is not None else None
-    return ctx.dimension(width, 1, node, zero_ok=True) if width is not None else 0.0
+    if width is None:
+        return 0.0
+    if _filled(node) and _non_positive(width):
+        # KiCad 8 and 9 write a filled shape without an outline as a pen of
+        # -0.000001 mm (seen on real boards): no pen, and nothing lost.
+        return 0.0
+    return ctx.dimension(width, 1, node, zero_ok=True)
+
+
+def _filled(node: Node) -> bool:
+    fill = find(node, "fill")
+    return fill is not None and len(fill) > 1 and fill[1] in ("solid", "yes")
+
+
+def _non_positive(width: Node) -> bool:
+    try:
+        return len(width) > 1 and isinstance(width[1], str) and float(width[1]) <= 0
+    except ValueError:
+        return False
 
 
 def layers_of(node: Node, ctx: ReadContext) -> tuple[str, ...]:

@@ -37,6 +37,9 @@ def _warnings(item: str) -> list[tuple[str, int | None]]:
     '(footprint "x" (layer "F.Cu") (at 0 0) (pad "1" smd circle (at 0 0) (size 0 0) '
     '(layers "F.Cu") (net 1 "TOUCH1")))',
     '(gr_line (start 0 0) (end 5 0) (stroke (width -1)) (layer "F.Cu") (net 1))',
+    # an outline-only polygon has no copper but its pen
+    '(gr_poly (pts (xy 0 0) (xy 1 0) (xy 1 1)) (stroke (width -0.000001)) (fill none) '
+    '(layer "F.Cu") (net 1))',
 ])
 def test_bad_size_is_a_located_warning(item: str) -> None:
     assert _warnings(item) == [("bad-size", 4)]
@@ -48,6 +51,10 @@ def test_bad_size_is_a_located_warning(item: str) -> None:
     # a filled polygon drawn with a zero-width pen is ordinary (kicad-format.md §11)
     '(gr_poly (pts (xy 0 0) (xy 1 0) (xy 1 1)) (stroke (width 0)) (fill solid) '
     '(layer "F.Cu") (net 1))',
+    # KiCad 8 and 9 write a filled shape with no outline as a pen of -0.000001
+    # mm (seen on real boards from both versions); the fill is the copper
+    '(gr_poly (pts (xy 0 0) (xy 1 0) (xy 1 1)) (stroke (width -0.000001) (type solid)) '
+    '(fill solid) (layer "F.Cu") (net 1))',
 ])
 def test_ordinary_sizes_warn_nothing(item: str) -> None:
     assert _warnings(item) == []
