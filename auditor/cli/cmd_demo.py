@@ -58,14 +58,15 @@ def run(args: argparse.Namespace) -> int:
             report.info, config_path=demo_config_path().name))
     finally:
         progress.close()
-    code = emit(report, args, demo=True)
+    code = emit(report, args, demo=True, before_verdict=lambda code: _closing_for(code, board))
+    return EXIT_CLEAN if code == EXIT_FINDINGS else code
+
+
+def _closing_for(code: int, board: object) -> None:
     if code == EXIT_FINDINGS:
-        if args.format == "text" and not args.output:
-            _closing("This is the demo: the problems above were planted on purpose. "
-                     "`padaudit audit` would exit 1 here and stop a merge.",
-                     f"Copy the board to experiment: padaudit demo --path  ->  {board}")
-        return EXIT_CLEAN
-    return code
+        _closing("This is the demo: the problems above were planted on purpose. "
+                 "`padaudit audit` would exit 1 here and stop a merge.",
+                 f"Copy the board to experiment: padaudit demo --path  ->  {board}")
 
 
 def _closing(*paragraphs: str) -> None:

@@ -11,7 +11,7 @@ import argparse
 import dataclasses
 import os
 import sys
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
 from pathlib import Path
 from typing import TYPE_CHECKING, TextIO
 
@@ -136,7 +136,7 @@ def _write_outputs(report: Report, args: argparse.Namespace) -> None:
 
 def emit(report: Report, args: argparse.Namespace, *, audit: AuditFn | None = None,
          stdout: TextIO | None = None, env: Mapping[str, str] | None = None,
-         demo: bool = False) -> int:
+         demo: bool = False, before_verdict: Callable[[int], None] | None = None) -> int:
     """Write the baseline file and every requested output, end with the
     run's one verdict line, and return the exit code that line states.
 
@@ -152,6 +152,10 @@ def emit(report: Report, args: argparse.Namespace, *, audit: AuditFn | None = No
     demo:
         The bundled demo: the verdict line says the demo exits 0 (the
         caller returns that) and what an audit would return.
+    before_verdict:
+        Called with the exit code just before the verdict line after a text
+        report on stdout, for a caller's own closing words (the verdict line
+        stays the run's last).
 
     Notes
     -----
@@ -187,6 +191,8 @@ def emit(report: Report, args: argparse.Namespace, *, audit: AuditFn | None = No
     summary = dataclasses.replace(summarize(report, diff), demo=demo)
     with stdout_may_close():
         if text_here:
+            if before_verdict is not None:
+                before_verdict(summary.exit_code)
             out.write("\n")
             render_summary(summary, out, colour)
         elif not getattr(args, "quiet", False):

@@ -32,6 +32,9 @@ def test_demo_text_run_exits_0_and_says_it_is_a_demo(capsys: pytest.CaptureFixtu
     out = capsys.readouterr().out
     assert "planted on purpose" in out
     assert "\x1b[" not in out
+    # The verdict line is the run's last, after the demo's own closing words.
+    assert out.rstrip("\n").splitlines()[-1].startswith("FAIL ")
+    assert out.rstrip("\n").splitlines()[-1].endswith("(demo: exit 0; an audit would exit 1)")
     # The README's sample is this run, trimmed: every line it shows must be
     # a line the demo prints today (common practice, no source).
     readme = (ROOT / "README.md").read_text("utf-8")
