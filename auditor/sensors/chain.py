@@ -14,6 +14,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from auditor.model.board import Board
+from auditor.sensors.components import connected_components
 from auditor.sensors.pieces import Piece, pads_by_net
 from auditor.sensors.segments import SEGMENT_GAP_MM
 
@@ -28,7 +29,7 @@ def resistor_chains(board: Board, pieces: Sequence[Piece]) -> list[list[Piece]]:
                 links[net].add(other)
                 links[other].add(net)
     out = []
-    for comp in _components(links):
+    for comp in connected_components(sorted(links), links.__getitem__):
         members = [p for p in pieces if p.net in comp]
         if len(comp) >= 3 and _side_by_side(members, links):
             out.append(members)
@@ -54,21 +55,3 @@ def _side_by_side(members: Sequence[Piece], links: dict[str, set[str]]) -> bool:
                     and a.geometry.distance(b.geometry) > SEGMENT_GAP_MM:
                 return False
     return True
-
-
-def _components(links: dict[str, set[str]]) -> list[set[str]]:
-    seen: set[str] = set()
-    out = []
-    for start in sorted(links):
-        if start in seen:
-            continue
-        stack, comp = [start], set()
-        seen.add(start)
-        while stack:
-            node = stack.pop()
-            comp.add(node)
-            for other in sorted(links[node] - seen):
-                seen.add(other)
-                stack.append(other)
-        out.append(comp)
-    return out

@@ -15,6 +15,7 @@ from collections.abc import Sequence
 from dataclasses import replace
 
 from auditor.sensors import robust
+from auditor.sensors.components import connected_components
 from auditor.sensors.model import Sensor
 
 #: Share of the smaller electrode's area the overlap must reach.
@@ -32,7 +33,8 @@ def crossed_kinds(sensors: Sequence[Sensor], fixed: set[str], front_layer: str
                 links[i].add(j)
                 links[j].add(i)
     out, changed = list(sensors), set()
-    for comp in _components(links):
+    for comp in connected_components([s for s in sorted(links) if links[s]],
+                                     links.__getitem__):
         by_layer: dict[str, list[int]] = {}
         for i in comp:
             by_layer.setdefault(sensors[i].layer, []).append(i)
@@ -53,21 +55,3 @@ def _stacked(a: Sensor, b: Sensor) -> bool:
         return False
     shared = float(robust.intersection(a.geometry, b.geometry).area)
     return shared >= OVERLAP_SHARE * min(a.area_mm2, b.area_mm2)
-
-
-def _components(links: dict[int, set[int]]) -> list[list[int]]:
-    seen: set[int] = set()
-    out = []
-    for start in sorted(links):
-        if start in seen or not links[start]:
-            continue
-        stack, comp = [start], []
-        seen.add(start)
-        while stack:
-            node = stack.pop()
-            comp.append(node)
-            for other in sorted(links[node] - seen):
-                seen.add(other)
-                stack.append(other)
-        out.append(sorted(comp))
-    return out

@@ -23,6 +23,7 @@ from dataclasses import replace
 from shapely import STRtree
 
 from auditor.model.vocabulary import SensorKind
+from auditor.sensors.components import connected_components
 from auditor.sensors.model import Sensor
 
 #: Largest edge-to-edge gap between two segments of one slider or wheel (mm).
@@ -53,7 +54,7 @@ def _grouped(loose: Sequence[Sensor], links: list[set[int]],
              why: Callable[[int, bool], str], rings: bool = True) -> dict[str, Sensor]:
     """Chains of three or more linked electrodes as slider or wheel segments."""
     changed: dict[str, Sensor] = {}
-    for chain in _components(len(loose), links):
+    for chain in connected_components(range(len(loose)), links.__getitem__):
         degrees = [len(links[i]) for i in chain]
         if len(chain) < 3 or max(degrees) > 2:
             continue
@@ -115,21 +116,3 @@ def _links(sensors: Sequence[Sensor]) -> list[set[int]]:
                 links[i].add(j)
                 links[j].add(i)
     return links
-
-
-def _components(size: int, links: list[set[int]]) -> list[list[int]]:
-    seen: set[int] = set()
-    out = []
-    for start in range(size):
-        if start in seen:
-            continue
-        stack, comp = [start], []
-        seen.add(start)
-        while stack:
-            node = stack.pop()
-            comp.append(node)
-            for other in sorted(links[node] - seen):
-                seen.add(other)
-                stack.append(other)
-        out.append(sorted(comp))
-    return out
