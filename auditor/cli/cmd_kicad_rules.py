@@ -18,6 +18,7 @@ from pathlib import Path
 from typing import Any
 
 from auditor.cli.confirm import confirm_written
+from auditor.cli.options import add_selection
 from auditor.errors import UsageError
 from auditor.report.kicad_dru_build import DruExport
 
@@ -48,12 +49,7 @@ def register(subparsers: argparse._SubParsersAction[Any]) -> None:
     parser.add_argument("--config", default=None, metavar="FILE",
                         help="configuration file (default: padaudit.toml or pyproject.toml "
                              "found walking up from the board)")
-    parser.add_argument("--net", action="append", default=[], metavar="GLOB",
-                        help="treat nets matching GLOB as electrodes (repeatable)")
-    parser.add_argument("--ref", action="append", default=[], metavar="REF",
-                        help="treat footprint REF (glob) as an electrode (repeatable)")
-    parser.add_argument("--controller", default="", metavar="REF",
-                        help="the touch controller's reference")
+    add_selection(parser)
 
 
 def run(args: argparse.Namespace) -> int:

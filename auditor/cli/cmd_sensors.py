@@ -12,7 +12,7 @@ import json
 import sys
 from typing import Any
 
-from auditor.cli.options import add_profile
+from auditor.cli.options import add_profile, add_selection
 from auditor.cli.wrap import write_lines
 from auditor.report.sensors_doc import sensors_document, sensors_text
 from auditor.sensors.find import find_sensors
@@ -36,12 +36,7 @@ def register(subparsers: argparse._SubParsersAction[Any]) -> None:
                     "copper that was considered but rejected.")
     parser.add_argument("board", metavar="BOARD", help="a .kicad_pcb file")
     parser.add_argument("--json", action="store_true", help="print JSON instead of text")
-    parser.add_argument("--net", action="append", default=[], metavar="GLOB",
-                        help="treat nets matching GLOB as electrodes (repeatable)")
-    parser.add_argument("--ref", action="append", default=[], metavar="REF",
-                        help="treat footprint REF (glob) as an electrode (repeatable)")
-    parser.add_argument("--controller", default="", metavar="REF",
-                        help="the touch controller's reference")
+    add_selection(parser)
     parser.add_argument("--config", default=None, metavar="FILE",
                         help="configuration file (default: padaudit.toml or pyproject.toml "
                              "found walking up from the board)")

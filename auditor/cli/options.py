@@ -68,5 +68,16 @@ def add_no_suggest(parser: _Adder) -> None:
                              "(saves the extra field solves)")
 
 
+def add_selection(parser: _Adder) -> None:
+    """``--net``, ``--ref`` and ``--controller``: name the electrodes and the
+    controller on the command line instead of in the configuration."""
+    parser.add_argument("--net", action="append", default=[], metavar="GLOB",
+                        help="treat nets matching GLOB as electrodes (repeatable)")
+    parser.add_argument("--ref", action="append", default=[], metavar="REF",
+                        help="treat footprint REF (glob) as an electrode (repeatable)")
+    parser.add_argument("--controller", default="", metavar="REF",
+                        help="the touch controller's reference")
+
+
 __all__ = ["PROFILE_HELP", "add_fail_on", "add_no_suggest", "add_overlay", "add_power",
-           "add_profile", "add_solve_mode", "add_touch_side"]
+           "add_profile", "add_selection", "add_solve_mode", "add_touch_side"]

@@ -66,6 +66,16 @@ def solve_pair(conductors: list[Conductor], medium: LayeredMedium, finger: Condu
     return baseline.matrix, touched.matrix
 
 
+def pad_capacitances(baseline: CapacitanceMatrix, touched: CapacitanceMatrix | None,
+                     setup: PadSetup) -> tuple[float, float]:
+    """Cp of the pad (conductor ``PAD``) to device ground without and with the
+    finger, through the setup's body and earth network (pF)."""
+    cp_pad = reduced_network(baseline, [PAD], setup, with_finger=False).values_pf[0][0]
+    cp_touched = cp_pad if touched is None else reduced_network(
+        touched, [PAD], setup, with_finger=True).values_pf[0][0]
+    return cp_pad, cp_touched
+
+
 def estimate_precise(setup: PadSetup, cell_mm: float = 0.25) -> PadSolve:
     """The quick model's round pad, ring and plane as polygons, solved in 3-D.
 
@@ -94,9 +104,7 @@ def estimate_precise(setup: PadSetup, cell_mm: float = 0.25) -> PadSolve:
         finger = Conductor(FINGER, Point(0, 0).buffer(0.5 * setup.finger_diameter_mm,
                                                       quad_segs=64), surface_level)
     baseline, touched = solve_pair(conductors, medium, finger, cell_mm)
-    cp_pad = reduced_network(baseline, [PAD], setup, with_finger=False).values_pf[0][0]
-    cp_touched = cp_pad if touched is None else reduced_network(
-        touched, [PAD], setup, with_finger=True).values_pf[0][0]
+    cp_pad, cp_touched = pad_capacitances(baseline, touched, setup)
     cp_trace, notes = traces_pf(setup.traces, setup.vias, setup.board_layers,
                                 setup.plane_depth_mm)
     total = cp_pad + cp_trace

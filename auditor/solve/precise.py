@@ -27,13 +27,13 @@ from shapely.ops import polylabel
 
 from auditor.config import Config
 from auditor.field.api import solve_pad
-from auditor.field.pad_model import reduced_network
 from auditor.field.precise import Conductor, LayeredMedium
 from auditor.field.round_pad import (
     CONTACT_AIR_MM,
     FINGER,
     GROUND,
     PAD,
+    pad_capacitances,
     solve_pair,
 )
 from auditor.field.traces import traces_pf
@@ -188,9 +188,7 @@ def metrics_from_precise(sensor: Sensor, board: Board, config: Config, mapped: F
     if setup.finger_diameter_mm is not None:
         finger = Conductor(FINGER, finger_disk(sensor, setup.finger_diameter_mm), 0)
     baseline, touched = solve_pair(conductors, stack.medium, finger, cell_mm)
-    cp_pad = reduced_network(baseline, [PAD], setup, with_finger=False).values_pf[0][0]
-    cp_touched = cp_pad if touched is None else reduced_network(
-        touched, [PAD], setup, with_finger=True).values_pf[0][0]
+    cp_pad, cp_touched = pad_capacitances(baseline, touched, setup)
     cp_trace, trace_notes = traces_pf(setup.traces, setup.vias, setup.board_layers,
                                       setup.plane_depth_mm)
     total = cp_pad + cp_trace
