@@ -13,34 +13,21 @@ import math
 from pathlib import Path
 
 import pytest
+from measured_boards import measured
 from scipy.constants import epsilon_0
 
-from auditor.audit import AuditOptions, measuring_selection, resolve_setup
 from auditor.field.api import BoardLayer, PadSetup, solve_pad
 from auditor.field.round_pad import estimate_precise
-from auditor.read import read_board
 from auditor.rules.context import RuleContext
 from auditor.rules.registry import run_rules
-from auditor.sensors import find_sensors, measure
 from auditor.solve.dispatch import solve_sensors
 from auditor.solve.extras import precise_extras
-from fixtures.make_rule_boards import Design, board_text
+from fixtures.make_rule_boards import Design
 
 #: Every test here runs 3-D solves (seconds each): not in the quick loop.
 pytestmark = pytest.mark.slow
 
 PRECISE_RULES = ("crosstalk-high", "slider-dead-zone", "slider-reversal", "slider-nonlinear")
-
-
-def measured(folder: Path, name: str, design: Design):  # type: ignore[no-untyped-def]
-    path = folder / f"{name}.kicad_pcb"
-    path.write_text(board_text(design, name), encoding="utf-8")
-    board = read_board(path)
-    setup = resolve_setup(path, AuditOptions())
-    selection = measuring_selection(setup)
-    sensors = tuple(sorted(measure(board, find_sensors(board, selection)[0], selection),
-                           key=lambda s: s.name))
-    return board, sensors, setup.config
 
 
 def test_round_stack_agrees_with_quick_solve() -> None:

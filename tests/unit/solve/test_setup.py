@@ -12,25 +12,14 @@ from dataclasses import replace
 from pathlib import Path
 
 import pytest
+from measured_boards import measured
 
 from auditor.audit import AuditOptions, measuring_selection, resolve_setup
 from auditor.config import Config
-from auditor.read import read_board
-from auditor.sensors import find_sensors, measure
+from auditor.sensors import find_sensors
 from auditor.solve.dispatch import solve_sensors
 from auditor.solve.setup import pad_setup_for
-from fixtures.make_rule_boards import Design, board_text
-
-
-def measured(folder: Path, name: str, design: Design):  # type: ignore[no-untyped-def]
-    path = folder / f"{name}.kicad_pcb"
-    path.write_text(board_text(design, name), encoding="utf-8")
-    board = read_board(path)
-    setup = resolve_setup(path, AuditOptions())
-    selection = measuring_selection(setup)
-    sensors = tuple(sorted(measure(board, find_sensors(board, selection)[0], selection),
-                           key=lambda s: s.name))
-    return board, sensors, setup.config
+from fixtures.make_rule_boards import Design
 
 
 @pytest.fixture(scope="module")
