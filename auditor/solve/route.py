@@ -4,9 +4,11 @@ The quick model is a disk with concentric ground (:mod:`auditor.field.api`);
 it holds for a plate of moderate aspect whose surroundings are nearly the
 same in every direction. The 3-D solve (:mod:`auditor.solve.precise`) takes
 the electrodes where that is not so. Each test below names what it guards
-against; the limits were set on the demo board and the field fixtures
-(``fixtures/make_field_boards.py``), where the quick model differs from the
-3-D one by more than 10 % past them (measured, ``bench/bench_modes.py``).
+against; the limits were set on the demo board, the field fixtures
+(``fixtures/make_field_boards.py``) and the development corpus of real
+boards (``tests/integration/test_corpus_field.py``), where the quick model
+differs from the 3-D one by more than 10 % past them (measured,
+``bench/bench_modes.py``).
 """
 
 from __future__ import annotations
