@@ -4,8 +4,11 @@ leaves to the disk model is within 10 % of the 3-D solve in Cp pad and ΔC
 (the goal of the automatic mode). The 3-D solve (auditor.field.precise) is
 itself checked against published results in tests/unit/field/precise.
 
-Only the boards that take seconds are here; the 64-key board (about a minute
-to measure) was checked by hand with the same comparison.
+The boards whose electrodes all go to 3-D in the automatic mode (the long
+slider pads, the electrode tile) and the mutual keyboard (no 3-D solve of
+pairs) are left out: they would compare a solve with itself. The 64-key
+board takes about 45 s; it holds the scattered traces behind the keys that
+the ring profile once turned into a plane.
 """
 
 from __future__ import annotations
@@ -32,7 +35,7 @@ CORPUS = next((p for p in (_ROOT.parent / "shared" / "corpus",
                if (p / "expected.json").is_file()), _ROOT.parent / "shared" / "corpus")
 #: The issue's goal for the automatic mode against the 3-D solve.
 AGREEMENT = 0.10
-BOARDS = ("02-picoslidertoy-k8", "06-synthiota1-k9", "08-captouch2finger-k5",
+BOARDS = ("02-picoslidertoy-k8", "04-solidkey1-k8", "06-synthiota1-k9", "08-captouch2finger-k5",
           "09-tillitis-tk1-k7", "10-goose-sao-k5", "12-esc2025-flex-badge-k9")
 
 pytestmark = [pytest.mark.slow,
