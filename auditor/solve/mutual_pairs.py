@@ -118,22 +118,34 @@ def mutual_metrics(sensors: tuple[Sensor, ...], board: Board, config: Config,
         tx = mutual_partner(rx, sensors)
         if tx is None:
             continue
-        quick = metrics_for_mutual(rx, tx, board, config, limits)
         route = pair_route(rx, tx, mode)
+        quick = _quick(rx, tx, board, config, limits)
         metrics = quick
         if route.method == "precise":
             metrics = _precise(rx, tx, board, config, limits, sensors, quick, solved)
-        out[rx.name] = metrics if metrics.method_reason else replace(
-            metrics, method_reason=route.reason)
+        if metrics is not None:
+            out[rx.name] = metrics if metrics.method_reason else replace(
+                metrics, method_reason=route.reason)
     return out
+
+
+def _quick(rx: Sensor, tx: Sensor, board: Board, config: Config,
+           limits: Mapping[str, float | int | bool]) -> PadMetrics | None:
+    """The disk-and-ring metrics, or None when the pair cannot be mapped onto
+    it (e.g. a transmit electrode larger than the ground's reach)."""
+    try:
+        return metrics_for_mutual(rx, tx, board, config, limits)
+    except UsageError:
+        return None
 
 
 def _precise(rx: Sensor, tx: Sensor, board: Board, config: Config,
              limits: Mapping[str, float | int | bool], sensors: tuple[Sensor, ...],
-             quick: PadMetrics,
+             quick: PadMetrics | None,
              solved: list[tuple[tuple[str, str, shapely.Geometry, shapely.Geometry], str,
-                                PadMetrics]]) -> PadMetrics:
-    """The pair's 3-D metrics, from an equal pair's solve when there is one."""
+                                PadMetrics]]) -> PadMetrics | None:
+    """The pair's 3-D metrics, from an equal pair's solve when there is one
+    (None when neither model can take the pair)."""
     # Imported here for start-up speed: the 3-D solver loads scipy.interpolate.
     from auditor.solve.mutual_precise import metrics_for_mutual_precise
 
@@ -144,13 +156,15 @@ def _precise(rx: Sensor, tx: Sensor, board: Board, config: Config,
             return replace(metrics, notes=(own, f"3-D solve shared with {name} (same copper "
                                                 "up to a translation; its surroundings were "
                                                 "solved)", *metrics.notes[1:3]),
-                           quick_cp_pad_pf=quick.cp_pad_pf,
-                           quick_cp_total_pf=quick.cp_total_pf,
-                           quick_delta_c_pf=quick.delta_c_pf)
+                           quick_cp_pad_pf=quick.cp_pad_pf if quick else None,
+                           quick_cp_total_pf=quick.cp_total_pf if quick else None,
+                           quick_delta_c_pf=quick.delta_c_pf if quick else None)
     mapped = pad_setup_for(rx, board, config, limits)
     try:
         metrics = metrics_for_mutual_precise(rx, tx, board, config, mapped, sensors, quick)
     except (UsageError, KeyError) as exc:
+        if quick is None:
+            return None
         return replace(quick, notes=(f"3-D solve of the pair not possible ({exc}); disk and "
                                      "ring estimate shown", *quick.notes),
                        method_reason=f"3-D solve not possible ({exc})")

@@ -102,9 +102,10 @@ def solve_pair_on_board(rx: Sensor, tx: Sensor, board: Board, config: Config,
 
 def metrics_for_mutual_precise(rx: Sensor, tx: Sensor, board: Board, config: Config,
                                mapped: FieldInput, others: tuple[Sensor, ...],
-                               quick: PadMetrics) -> PadMetrics:
+                               quick: PadMetrics | None) -> PadMetrics:
     """Cm and its drop under the finger from the 3-D solve, in the PadMetrics
-    slots as the quick pair model fills them (``cp_pad_pf`` is Cm)."""
+    slots as the quick pair model fills them (``cp_pad_pf`` is Cm); ``quick``:
+    the disk-and-ring answer beside it (None when the pair does not map onto it)."""
     solved, gap_share, fine = solve_pair_on_board(rx, tx, board, config, mapped, others)
     cm = solved.cm_pf + gap_share
     delta = solved.delta_cm_pf
@@ -115,13 +116,21 @@ def metrics_for_mutual_precise(rx: Sensor, tx: Sensor, board: Board, config: Con
              f"gaps refined ({fine:.3g} mm cells, extrapolated: {gap_share:+.3f} pF of Cm)",
              f"finger floating on the touch face over the pair's centre, "
              f"{mapped.setup.body_to_earth_pf:g} pF body to earth",
-             _versus("Cm", cm, quick.cp_pad_pf), _versus("ΔCm", delta, quick.delta_c_pf))
+             *_versus(cm, delta, quick))
     return PadMetrics(cm, 0.0, cm, delta, delta / cm if cm else 0.0, "precise", notes,
-                      quick_cp_pad_pf=quick.cp_pad_pf, quick_cp_total_pf=quick.cp_total_pf,
-                      quick_delta_c_pf=quick.delta_c_pf)
+                      quick_cp_pad_pf=quick.cp_pad_pf if quick else None,
+                      quick_cp_total_pf=quick.cp_total_pf if quick else None,
+                      quick_delta_c_pf=quick.delta_c_pf if quick else None)
 
 
-def _versus(label: str, precise: float, quick: float) -> str:
+def _versus(cm: float, delta: float, quick: PadMetrics | None) -> tuple[str, ...]:
+    if quick is None:
+        return ("no disk-and-ring estimate: the pair does not map onto it",)
+    return tuple(_versus_one(label, precise, estimate) for label, precise, estimate in
+                 (("Cm", cm, quick.cp_pad_pf), ("ΔCm", delta, quick.delta_c_pf)))
+
+
+def _versus_one(label: str, precise: float, quick: float) -> str:
     change = f"{(precise / quick - 1.0) * 100.0:+.0f} %" if quick else "n/a"
     return (f"{label}: precise {precise:.3f} pF, disk-and-ring estimate {quick:.3f} pF "
             f"({change})")

@@ -26,8 +26,8 @@ MUTUAL = Path(__file__).resolve().parents[3] / "fixtures" / "mutual"
 MANIFEST = json.loads((MUTUAL / "manifest.json").read_text(encoding="utf-8"))
 
 
-def _sensors(board_name: str) -> tuple[Sensor, ...]:
-    path = MUTUAL / board_name
+def _sensors(board_name: str, folder: Path = MUTUAL) -> tuple[Sensor, ...]:
+    path = folder / board_name
     options = AuditOptions(solve=False)
     setup = resolve_setup(path, options)
     board = read_board(path)
@@ -112,3 +112,15 @@ def test_equal_keys_share_one_solve() -> None:
         assert auto[name].cp_pad_pf == auto[first].cp_pad_pf
         assert any(f"3-D solve shared with {first}" in note for note in auto[name].notes)
     assert not any("shared with" in note for note in auto[first].notes)
+
+
+def test_stacked_pair_goes_to_3d() -> None:
+    """Transmit segments on B.Cu under a receive strip on F.Cu
+    (fixtures/make_structure_boards.py, mutual-xy): no coplanar disk and ring."""
+    sensors = _sensors("mutual-xy.kicad_pcb", MUTUAL.parent / "structures")
+    rx = next(s for s in sensors if s.kind == "mutual-rx")
+    tx = mutual_partner(rx, sensors)
+    assert tx is not None
+    route = pair_route(rx, tx, "auto")
+    assert route.method == "precise"
+    assert "stacked" in route.reason
