@@ -34,14 +34,18 @@ _APPLY_BYTES = 24 * 2**20
 class LevelKernels:
     """Cell kernels between the meshed levels of one grid and medium.
 
-    ``spectra`` are real: each kernel is even in both offsets, so its
-    circular embedding is even and its discrete Fourier transform real.
+    Each kernel is even in both offsets, so its circular embedding is even
+    and its discrete Fourier transform real; ``spectra[a][b]`` holds it with
+    a zero imaginary part all the same (and is the same array as
+    ``spectra[b][a]``): numpy multiplies a complex spectrum by a real array
+    through a cast to complex on every call, which costs more than the
+    storage (the products are bit for bit the same).
     """
 
     grid: CellGrid
     levels: tuple[int, ...]
     quadrants: tuple[tuple[FloatArray, ...], ...]
-    spectra: FloatArray
+    spectra: tuple[tuple[ComplexArray, ...], ...]
     fft_shape: tuple[int, int]
 
 
@@ -57,20 +61,20 @@ def level_kernels(medium: LayeredMedium, grid: CellGrid, levels: tuple[int, ...]
     greens = greens_covering(medium, diagonal_mm)
     fft_shape = (scipy.fft.next_fast_len(2 * grid.nx - 1, real=True),
                  scipy.fft.next_fast_len(2 * grid.ny - 1, real=True))
-    count = len(levels)
     quadrants: list[list[FloatArray]] = [[] for _ in levels]
-    spectra = np.zeros((count, count, fft_shape[0], fft_shape[1] // 2 + 1))
+    spectra: list[list[ComplexArray]] = [[] for _ in levels]
     for a, target in enumerate(levels):
         for b, source in enumerate(levels):
             if b < a:
                 quadrants[a].append(quadrants[b][a])
-                spectra[a, b] = spectra[b, a]
+                spectra[a].append(spectra[b][a])
                 continue
             quadrant = cell_kernel(greens, target, source, grid.cell_mm, (grid.nx, grid.ny))
             quadrants[a].append(quadrant)
-            spectra[a, b] = scipy.fft.rfft2(full_kernel(quadrant, fft_shape)).real
-    return LevelKernels(grid, levels, tuple(tuple(row) for row in quadrants), spectra,
-                        fft_shape)
+            spectrum = scipy.fft.rfft2(full_kernel(quadrant, fft_shape)).real
+            spectra[a].append(spectrum.astype(complex))
+    return LevelKernels(grid, levels, tuple(tuple(row) for row in quadrants),
+                        tuple(tuple(row) for row in spectra), fft_shape)
 
 
 @dataclass(frozen=True)
@@ -134,21 +138,30 @@ class CellOperator:
                 spectra: list[ComplexArray | None]) -> FloatArray:
         """Potential sheets on level ``target`` for ``columns``, flat cells."""
         grid = self.kernels.grid
-        shape = (columns.size, self.kernels.fft_shape[0], self.kernels.fft_shape[1] // 2 + 1)
-        mixed = np.zeros(shape, dtype=complex)
+        mixed: ComplexArray | None = None
+        scratch: ComplexArray | None = None
         for b, source_columns in enumerate(on_level):
             source = spectra[b]
             if source is None:
                 continue
-            kernel = self.kernels.spectra[target, b]
+            kernel = self.kernels.spectra[target][b]
             if np.array_equal(source_columns, columns):
-                mixed += source * kernel
+                # In place into one scratch array: the temporaries of
+                # ``mixed += source * kernel`` cost as much as the product.
+                if mixed is None:
+                    mixed = np.multiply(source, kernel)
+                    continue
+                scratch = np.multiply(source, kernel, out=scratch)
+                mixed += scratch
                 continue
+            if mixed is None:
+                mixed = np.zeros((columns.size, *kernel.shape), dtype=complex)
             # Only the columns that use both levels get a contribution.
             where = np.searchsorted(source_columns, columns)
             clipped = np.minimum(where, source_columns.size - 1)
             present = np.flatnonzero(source_columns[clipped] == columns)
             mixed[present] += source[clipped[present]] * kernel
+        assert mixed is not None  # the target level is always among the sources
         fields = _cropped_irfft2(mixed, self.kernels.fft_shape, (grid.nx, grid.ny))
         return fields.reshape(columns.size, -1)
 
