@@ -236,23 +236,29 @@ def cell_operator(kernels: LevelKernels, cells: tuple[IntArray, ...],
 
 def conjugate_gradient(apply_matrix: Callable[[FloatArray, IntArray], FloatArray],
                        apply_preconditioner: Callable[[FloatArray], FloatArray],
-                       rhs: FloatArray, tolerance: float, max_iterations: int
+                       rhs: FloatArray, tolerance: float, max_iterations: int,
+                       initial: FloatArray | None = None
                        ) -> tuple[FloatArray, FloatArray, int]:
     """Preconditioned CG on every column of ``rhs`` at once.
 
     ``apply_matrix(values, columns)`` applies the operator to ``values``,
     the current directions of the still unconverged ``columns`` of ``rhs``:
     a column stops costing operator applications as soon as it has reached
-    ``tolerance`` (relative residual). Returns the solution, its residual
+    ``tolerance`` (relative residual, relative to ``rhs`` whatever the
+    start). ``initial`` is the starting guess (default zero; one more
+    operator application). Returns the solution, its residual
     ``rhs - A solution`` and the number of iterations of the slowest column;
     raises :class:`RuntimeError` if some column has not converged within
     ``max_iterations``.
     """
-    solution = np.zeros_like(rhs)
-    final_residual = rhs.copy()
     rhs_norm = np.maximum(np.linalg.norm(rhs, axis=0), 1e-300)
     live = np.flatnonzero(np.linalg.norm(rhs, axis=0) > 0.0)
-    residual = rhs[:, live].copy()
+    solution = np.zeros_like(rhs)
+    final_residual = rhs.copy()
+    if initial is not None:
+        solution[:, live] = initial[:, live]
+        final_residual[:, live] -= apply_matrix(solution[:, live], live)
+    residual = final_residual[:, live].copy()
     preconditioned = apply_preconditioner(residual)
     direction = preconditioned.copy()
     rz = np.sum(residual * preconditioned, axis=0)
