@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass
-from functools import lru_cache
+from functools import cached_property, lru_cache
 
 import numpy as np
 import scipy.fft
@@ -131,12 +131,12 @@ class CellOperator:
                 for n in self._blocks_on(a):
                     rows = slice(self.starts[n], self.starts[n + 1])
                     used = active[n, columns]
-                    potential[rows, columns[used]] += fields[used][:, self.cells[n]].T
+                    potential[rows, columns[used]] += fields[used][:, self._padded_cells[n]].T
         return potential
 
     def _fields(self, target: int, columns: IntArray, on_level: list[IntArray],
                 spectra: list[ComplexArray | None]) -> FloatArray:
-        """Potential sheets on level ``target`` for ``columns``, flat cells."""
+        """Potential sheets on level ``target`` for ``columns``, flat padded rows."""
         grid = self.kernels.grid
         mixed: ComplexArray | None = None
         scratch: ComplexArray | None = None
@@ -162,7 +162,7 @@ class CellOperator:
             present = np.flatnonzero(source_columns[clipped] == columns)
             mixed[present] += source[clipped[present]] * kernel
         assert mixed is not None  # the target level is always among the sources
-        fields = _cropped_irfft2(mixed, self.kernels.fft_shape, (grid.nx, grid.ny))
+        fields = _cropped_irfft2(mixed, self.kernels.fft_shape, grid.nx)
         return fields.reshape(columns.size, -1)
 
     def _blocks_on(self, level_index: int) -> list[int]:
@@ -179,13 +179,22 @@ class CellOperator:
 
     def _sheets(self, charge: FloatArray, active: BoolArray, level_index: int,
                 columns: IntArray) -> FloatArray:
+        """Charge sheets of one level, already zero-padded to the FFT row length
+        (``scipy.fft.rfft`` pads a short row much more slowly than it
+        transforms a full one)."""
         grid = self.kernels.grid
-        sheets = np.zeros((columns.size, grid.nx * grid.ny))
+        sheets = np.zeros((columns.size, grid.nx * self.kernels.fft_shape[1]))
         for n in self._blocks_on(level_index):
             used = active[n, columns]
             block = charge[self.starts[n]:self.starts[n + 1], columns[used]]
-            sheets[np.flatnonzero(used)[:, None], self.cells[n][None, :]] = block.T
-        return sheets.reshape(columns.size, grid.nx, grid.ny)
+            sheets[np.flatnonzero(used)[:, None], self._padded_cells[n][None, :]] = block.T
+        return sheets.reshape(columns.size, grid.nx, self.kernels.fft_shape[1])
+
+    @cached_property
+    def _padded_cells(self) -> tuple[IntArray, ...]:
+        """Each block's cells as flat indices into rows of the FFT row length."""
+        ny, row = self.kernels.grid.ny, self.kernels.fft_shape[1]
+        return tuple((cells // ny) * row + cells % ny for cells in self.cells)
 
     def dense(self) -> FloatArray:
         """The same operator as a dense matrix (for small cross-checks only)."""
@@ -203,17 +212,18 @@ class CellOperator:
 
 
 def _padded_rfft2(values: FloatArray, shape: tuple[int, int]) -> ComplexArray:
-    """``rfft2`` of zero-padded data; the all-zero padded rows are never transformed."""
-    rows = scipy.fft.rfft(values, n=shape[1], axis=-1, workers=_FFT_WORKERS)
+    """``rfft2`` of data given at full row length ``shape[1]``, zero-padded to
+    ``shape[0]`` rows; the all-zero padded rows are never transformed."""
+    rows = scipy.fft.rfft(values, axis=-1, workers=_FFT_WORKERS)
     return np.asarray(scipy.fft.fft(rows, n=shape[0], axis=-2, workers=_FFT_WORKERS))
 
 
-def _cropped_irfft2(spectra: ComplexArray, shape: tuple[int, int],
-                    keep: tuple[int, int]) -> FloatArray:
-    """``irfft2`` cropped to ``keep``; only the kept rows get the last inverse pass."""
-    rows = scipy.fft.ifft(spectra, axis=-2, workers=_FFT_WORKERS)[..., :keep[0], :]
-    values = scipy.fft.irfft(rows, n=shape[1], axis=-1, workers=_FFT_WORKERS)
-    return np.asarray(values[..., :keep[1]], dtype=float)
+def _cropped_irfft2(spectra: ComplexArray, shape: tuple[int, int], keep_rows: int
+                    ) -> FloatArray:
+    """``irfft2`` cropped to the first ``keep_rows`` rows (full row length);
+    only those rows get the last inverse pass."""
+    rows = scipy.fft.ifft(spectra, axis=-2, workers=_FFT_WORKERS)[..., :keep_rows, :]
+    return np.asarray(scipy.fft.irfft(rows, n=shape[1], axis=-1, workers=_FFT_WORKERS))
 
 
 def cell_operator(kernels: LevelKernels, cells: tuple[IntArray, ...],
