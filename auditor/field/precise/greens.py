@@ -19,7 +19,6 @@ from functools import lru_cache
 
 import numpy as np
 from numpy.typing import NDArray
-from scipy.interpolate import CubicSpline
 from scipy.special import j0
 
 from auditor.field.precise.medium import (
@@ -28,6 +27,7 @@ from auditor.field.precise.medium import (
     level_separations_mm,
     spectral_potential,
 )
+from auditor.field.precise.spline import UniformSpline, flat_start_spline
 
 FloatArray = NDArray[np.float64]
 
@@ -49,7 +49,7 @@ class LayeredGreens:
     direct: FloatArray
     separations_mm: FloatArray
     max_radius_mm: float
-    splines: tuple[tuple[CubicSpline | None, ...], ...]
+    splines: tuple[tuple[UniformSpline | None, ...], ...]
     radius_scale_mm: float
 
     def remainder(self, target: int, source: int, radius_mm: FloatArray) -> FloatArray:
@@ -107,12 +107,11 @@ def tabulate_greens(medium: LayeredMedium, max_radius_mm: float) -> LayeredGreen
         chunk = slice(first, first + _RADII_PER_CHUNK)
         bessel_weights = j0(np.outer(radii[chunk], k)) * weights
         values[chunk] = np.einsum("rk,kij->rij", bessel_weights, remainder_k)
-    rows: list[tuple[CubicSpline | None, ...]] = []
+    rows: list[tuple[UniformSpline | None, ...]] = []
     for target in range(count):
-        row: list[CubicSpline | None] = []
+        row: list[UniformSpline | None] = []
         for source in range(count):
-            row.append(CubicSpline(u_grid, values[:, target, source],
-                                   bc_type=((1, 0.0), "not-a-knot")))
+            row.append(flat_start_spline(u_grid, values[:, target, source]))
         rows.append(tuple(row))
     return LayeredGreens(medium, direct, separations, max_radius_mm, tuple(rows), scale)
 

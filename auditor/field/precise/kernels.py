@@ -32,11 +32,11 @@ def rectangle_primitive(x: FloatArray, y: FloatArray, height: float) -> FloatArr
     """``F(x, y)`` with ``d2F/dxdy = 1/sqrt(x^2 + y^2 + height^2)``; see
     :func:`rectangle_inverse_distance`."""
     z = height
-    r = np.sqrt(x * x + y * y + z * z)
     with np.errstate(divide="ignore", invalid="ignore"):
         term_x = np.where(x == 0.0, 0.0, x * np.arcsinh(y / np.sqrt(x * x + z * z)))
         term_y = np.where(y == 0.0, 0.0, y * np.arcsinh(x / np.sqrt(y * y + z * z)))
-    term_z = z * np.arctan2(x * y, z * r) if z > 0.0 else 0.0
+    # r only enters the height term (the same level's edge cells have none).
+    term_z = z * np.arctan2(x * y, z * np.sqrt(x * x + y * y + z * z)) if z > 0.0 else 0.0
     value: FloatArray = term_x + term_y - term_z
     return value
 

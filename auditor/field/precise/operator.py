@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass
-from functools import lru_cache
+from functools import cached_property, lru_cache
 
 import numpy as np
 import scipy.fft
@@ -34,14 +34,18 @@ _APPLY_BYTES = 24 * 2**20
 class LevelKernels:
     """Cell kernels between the meshed levels of one grid and medium.
 
-    ``spectra`` are real: each kernel is even in both offsets, so its
-    circular embedding is even and its discrete Fourier transform real.
+    Each kernel is even in both offsets, so its circular embedding is even
+    and its discrete Fourier transform real; ``spectra[a][b]`` holds it with
+    a zero imaginary part all the same (and is the same array as
+    ``spectra[b][a]``): numpy multiplies a complex spectrum by a real array
+    through a cast to complex on every call, which costs more than the
+    storage (the products are bit for bit the same).
     """
 
     grid: CellGrid
     levels: tuple[int, ...]
     quadrants: tuple[tuple[FloatArray, ...], ...]
-    spectra: FloatArray
+    spectra: tuple[tuple[ComplexArray, ...], ...]
     fft_shape: tuple[int, int]
 
 
@@ -57,20 +61,20 @@ def level_kernels(medium: LayeredMedium, grid: CellGrid, levels: tuple[int, ...]
     greens = greens_covering(medium, diagonal_mm)
     fft_shape = (scipy.fft.next_fast_len(2 * grid.nx - 1, real=True),
                  scipy.fft.next_fast_len(2 * grid.ny - 1, real=True))
-    count = len(levels)
     quadrants: list[list[FloatArray]] = [[] for _ in levels]
-    spectra = np.zeros((count, count, fft_shape[0], fft_shape[1] // 2 + 1))
+    spectra: list[list[ComplexArray]] = [[] for _ in levels]
     for a, target in enumerate(levels):
         for b, source in enumerate(levels):
             if b < a:
                 quadrants[a].append(quadrants[b][a])
-                spectra[a, b] = spectra[b, a]
+                spectra[a].append(spectra[b][a])
                 continue
             quadrant = cell_kernel(greens, target, source, grid.cell_mm, (grid.nx, grid.ny))
             quadrants[a].append(quadrant)
-            spectra[a, b] = scipy.fft.rfft2(full_kernel(quadrant, fft_shape)).real
-    return LevelKernels(grid, levels, tuple(tuple(row) for row in quadrants), spectra,
-                        fft_shape)
+            spectrum = scipy.fft.rfft2(full_kernel(quadrant, fft_shape)).real
+            spectra[a].append(spectrum.astype(complex))
+    return LevelKernels(grid, levels, tuple(tuple(row) for row in quadrants),
+                        tuple(tuple(row) for row in spectra), fft_shape)
 
 
 @dataclass(frozen=True)
@@ -127,29 +131,38 @@ class CellOperator:
                 for n in self._blocks_on(a):
                     rows = slice(self.starts[n], self.starts[n + 1])
                     used = active[n, columns]
-                    potential[rows, columns[used]] += fields[used][:, self.cells[n]].T
+                    potential[rows, columns[used]] += fields[used][:, self._padded_cells[n]].T
         return potential
 
     def _fields(self, target: int, columns: IntArray, on_level: list[IntArray],
                 spectra: list[ComplexArray | None]) -> FloatArray:
-        """Potential sheets on level ``target`` for ``columns``, flat cells."""
+        """Potential sheets on level ``target`` for ``columns``, flat padded rows."""
         grid = self.kernels.grid
-        shape = (columns.size, self.kernels.fft_shape[0], self.kernels.fft_shape[1] // 2 + 1)
-        mixed = np.zeros(shape, dtype=complex)
+        mixed: ComplexArray | None = None
+        scratch: ComplexArray | None = None
         for b, source_columns in enumerate(on_level):
             source = spectra[b]
             if source is None:
                 continue
-            kernel = self.kernels.spectra[target, b]
+            kernel = self.kernels.spectra[target][b]
             if np.array_equal(source_columns, columns):
-                mixed += source * kernel
+                # In place into one scratch array: the temporaries of
+                # ``mixed += source * kernel`` cost as much as the product.
+                if mixed is None:
+                    mixed = np.multiply(source, kernel)
+                    continue
+                scratch = np.multiply(source, kernel, out=scratch)
+                mixed += scratch
                 continue
+            if mixed is None:
+                mixed = np.zeros((columns.size, *kernel.shape), dtype=complex)
             # Only the columns that use both levels get a contribution.
             where = np.searchsorted(source_columns, columns)
             clipped = np.minimum(where, source_columns.size - 1)
             present = np.flatnonzero(source_columns[clipped] == columns)
             mixed[present] += source[clipped[present]] * kernel
-        fields = _cropped_irfft2(mixed, self.kernels.fft_shape, (grid.nx, grid.ny))
+        assert mixed is not None  # the target level is always among the sources
+        fields = _cropped_irfft2(mixed, self.kernels.fft_shape, grid.nx)
         return fields.reshape(columns.size, -1)
 
     def _blocks_on(self, level_index: int) -> list[int]:
@@ -166,13 +179,22 @@ class CellOperator:
 
     def _sheets(self, charge: FloatArray, active: BoolArray, level_index: int,
                 columns: IntArray) -> FloatArray:
+        """Charge sheets of one level, already zero-padded to the FFT row length
+        (``scipy.fft.rfft`` pads a short row much more slowly than it
+        transforms a full one)."""
         grid = self.kernels.grid
-        sheets = np.zeros((columns.size, grid.nx * grid.ny))
+        sheets = np.zeros((columns.size, grid.nx * self.kernels.fft_shape[1]))
         for n in self._blocks_on(level_index):
             used = active[n, columns]
             block = charge[self.starts[n]:self.starts[n + 1], columns[used]]
-            sheets[np.flatnonzero(used)[:, None], self.cells[n][None, :]] = block.T
-        return sheets.reshape(columns.size, grid.nx, grid.ny)
+            sheets[np.flatnonzero(used)[:, None], self._padded_cells[n][None, :]] = block.T
+        return sheets.reshape(columns.size, grid.nx, self.kernels.fft_shape[1])
+
+    @cached_property
+    def _padded_cells(self) -> tuple[IntArray, ...]:
+        """Each block's cells as flat indices into rows of the FFT row length."""
+        ny, row = self.kernels.grid.ny, self.kernels.fft_shape[1]
+        return tuple((cells // ny) * row + cells % ny for cells in self.cells)
 
     def dense(self) -> FloatArray:
         """The same operator as a dense matrix (for small cross-checks only)."""
@@ -190,17 +212,18 @@ class CellOperator:
 
 
 def _padded_rfft2(values: FloatArray, shape: tuple[int, int]) -> ComplexArray:
-    """``rfft2`` of zero-padded data; the all-zero padded rows are never transformed."""
-    rows = scipy.fft.rfft(values, n=shape[1], axis=-1, workers=_FFT_WORKERS)
+    """``rfft2`` of data given at full row length ``shape[1]``, zero-padded to
+    ``shape[0]`` rows; the all-zero padded rows are never transformed."""
+    rows = scipy.fft.rfft(values, axis=-1, workers=_FFT_WORKERS)
     return np.asarray(scipy.fft.fft(rows, n=shape[0], axis=-2, workers=_FFT_WORKERS))
 
 
-def _cropped_irfft2(spectra: ComplexArray, shape: tuple[int, int],
-                    keep: tuple[int, int]) -> FloatArray:
-    """``irfft2`` cropped to ``keep``; only the kept rows get the last inverse pass."""
-    rows = scipy.fft.ifft(spectra, axis=-2, workers=_FFT_WORKERS)[..., :keep[0], :]
-    values = scipy.fft.irfft(rows, n=shape[1], axis=-1, workers=_FFT_WORKERS)
-    return np.asarray(values[..., :keep[1]], dtype=float)
+def _cropped_irfft2(spectra: ComplexArray, shape: tuple[int, int], keep_rows: int
+                    ) -> FloatArray:
+    """``irfft2`` cropped to the first ``keep_rows`` rows (full row length);
+    only those rows get the last inverse pass."""
+    rows = scipy.fft.ifft(spectra, axis=-2, workers=_FFT_WORKERS)[..., :keep_rows, :]
+    return np.asarray(scipy.fft.irfft(rows, n=shape[1], axis=-1, workers=_FFT_WORKERS))
 
 
 def cell_operator(kernels: LevelKernels, cells: tuple[IntArray, ...],
@@ -223,23 +246,29 @@ def cell_operator(kernels: LevelKernels, cells: tuple[IntArray, ...],
 
 def conjugate_gradient(apply_matrix: Callable[[FloatArray, IntArray], FloatArray],
                        apply_preconditioner: Callable[[FloatArray], FloatArray],
-                       rhs: FloatArray, tolerance: float, max_iterations: int
+                       rhs: FloatArray, tolerance: float, max_iterations: int,
+                       initial: FloatArray | None = None
                        ) -> tuple[FloatArray, FloatArray, int]:
     """Preconditioned CG on every column of ``rhs`` at once.
 
     ``apply_matrix(values, columns)`` applies the operator to ``values``,
     the current directions of the still unconverged ``columns`` of ``rhs``:
     a column stops costing operator applications as soon as it has reached
-    ``tolerance`` (relative residual). Returns the solution, its residual
+    ``tolerance`` (relative residual, relative to ``rhs`` whatever the
+    start). ``initial`` is the starting guess (default zero; one more
+    operator application). Returns the solution, its residual
     ``rhs - A solution`` and the number of iterations of the slowest column;
     raises :class:`RuntimeError` if some column has not converged within
     ``max_iterations``.
     """
-    solution = np.zeros_like(rhs)
-    final_residual = rhs.copy()
     rhs_norm = np.maximum(np.linalg.norm(rhs, axis=0), 1e-300)
     live = np.flatnonzero(np.linalg.norm(rhs, axis=0) > 0.0)
-    residual = rhs[:, live].copy()
+    solution = np.zeros_like(rhs)
+    final_residual = rhs.copy()
+    if initial is not None:
+        solution[:, live] = initial[:, live]
+        final_residual[:, live] -= apply_matrix(solution[:, live], live)
+    residual = final_residual[:, live].copy()
     preconditioned = apply_preconditioner(residual)
     direction = preconditioned.copy()
     rz = np.sum(residual * preconditioned, axis=0)
