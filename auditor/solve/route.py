@@ -101,7 +101,8 @@ def _coplanar(mapped: FieldInput, cover_mm: float) -> str:
     shield = [n for n in near.nets if is_shield_net(n)]
     what = f"driven shield {shield[0]}" if shield else f"signal copper {near.nets[0]}"
     return (f"{what} {near.typical_gap_mm:.2f} mm beside {near.outline_share:.0%} of the "
-            "outline (not in the disk model; held at ground in 3-D)")
+            "outline (not in the disk model; in 3-D a shield follows the pad, a signal is "
+            "held at ground)")
 
 
 def _aspect(sensor: Sensor) -> float:
