@@ -87,7 +87,7 @@ def without_slivers(conductors: Sequence[Conductor], cell_mm: float, keep: Seque
         if len(kept) < len(parts):
             dropped = sum(g.area for g in parts) - sum(g.area for g in kept)
             notes.append(f"{len(parts) - len(kept)} piece(s) of {conductor.name} "
-                         f"({dropped:.2f} mm² in all) smaller than one {cell_mm:g} mm cell "
+                         f"({dropped:.2f} mm² in all) smaller than one {cell_mm:.3g} mm cell "
                          "left out")
         if kept:
             geometry = kept[0] if len(kept) == 1 else shapely.MultiPolygon(kept)

@@ -104,3 +104,20 @@ def test_netless_copper_touching_the_electrode_joins_it(tmp_path) -> None:  # ty
     merged, added = touching_artwork(read_board(path), sensor, window_around(electrode, 10.0))
     assert added == pytest.approx(16.0 + 4.0, rel=1e-3)
     assert merged.area == pytest.approx(36.0, rel=1e-3)
+
+
+def test_shield_behind_the_pad_goes_3d() -> None:
+    """The disk model holds copper behind the pad at ground; a driven shield is
+    not, so the automatic mode sends the electrode to 3-D."""
+    from auditor.solve.route import route_for
+    from auditor.solve.setup import FieldInput
+    from auditor.solve.shadows import LayerCopper
+
+    shield = LayerCopper("B.Cu", 1.6, False, ((10.0, 1.0),), 1.0, 1.0, 0.0,
+                         (("signals", 1.0, ("AC_SHIELD",)),))
+    signal = replace(shield, classes=(("signals", 1.0, ("SIG1",)),))
+    pad = _sensor(Point(0, 0).buffer(5.0))
+    route = route_for(pad, FieldInput(PadSetup(pad_area_mm2=78.5), (), (shield,)))
+    assert route.method == "precise" and "driven shield AC_SHIELD" in route.reason
+    assert "shield" not in route_for(pad, FieldInput(PadSetup(pad_area_mm2=78.5), (),
+                                                     (signal,))).reason
