@@ -29,10 +29,15 @@ CONTACT_AIR_MM = 0.05
 GROUND = "ground"
 PAD = "pad"
 FINGER = "finger"
+#: A driven shield's pieces (``shield@<layer>``) tie into this node, held at
+#: the pad's potential.
+SHIELD = "shield"
 
 
-def merged_ground(matrix: CapacitanceMatrix, prefix: str = GROUND + "@") -> CapacitanceMatrix:
-    """One ``ground`` node from its pieces on several levels (they are one net).
+def merged_ground(matrix: CapacitanceMatrix, prefix: str = GROUND + "@",
+                  node: str = GROUND) -> CapacitanceMatrix:
+    """One ``node`` from its pieces (named ``prefix``...) on several levels
+    (they are one net).
 
     Conductors tied together: their rows and columns add (charge adds, the
     potential is shared).
@@ -47,7 +52,7 @@ def merged_ground(matrix: CapacitanceMatrix, prefix: str = GROUND + "@") -> Capa
         join[i, column] = 1.0
     join[pieces, -1] = 1.0
     values = join.T @ matrix.array() @ join
-    return CapacitanceMatrix.from_array(tuple(names[i] for i in rest) + (GROUND,), values)
+    return CapacitanceMatrix.from_array(tuple(names[i] for i in rest) + (node,), values)
 
 
 def solve_pair(conductors: list[Conductor], medium: LayeredMedium, finger: Conductor | None,
@@ -57,10 +62,13 @@ def solve_pair(conductors: list[Conductor], medium: LayeredMedium, finger: Condu
     # envelope cost half a second per demo pad.
     window = box(*shapely.total_bounds([c.geometry for c in conductors]))
     if finger is None:
-        return merged_ground(solve_capacitance(conductors, medium, cell_mm, window=window)), None
+        matrix = merged_ground(solve_capacitance(conductors, medium, cell_mm, window=window))
+        return merged_ground(matrix, SHIELD + "@", SHIELD), None
     # One batched solve: same mesh and operator with and without the finger,
-    # the ground's pieces on each layer tied into one node (one right-hand side).
-    tied = {c.name: GROUND for c in conductors if c.name.startswith(GROUND + "@")}
+    # the ground's (and a shield's) pieces on each layer tied into one node
+    # (one right-hand side).
+    tied = {c.name: node for c in conductors for node in (GROUND, SHIELD)
+            if c.name.startswith(node + "@")}
     baseline, touched = solve_variants(conductors, [(), (finger,)], medium, cell_mm,
                                        window=window, tied=tied)
     return baseline.matrix, touched.matrix
@@ -69,11 +77,21 @@ def solve_pair(conductors: list[Conductor], medium: LayeredMedium, finger: Condu
 def pad_capacitances(baseline: CapacitanceMatrix, touched: CapacitanceMatrix | None,
                      setup: PadSetup) -> tuple[float, float]:
     """Cp of the pad (conductor ``PAD``) to device ground without and with the
-    finger, through the setup's body and earth network (pF)."""
-    cp_pad = reduced_network(baseline, [PAD], setup, with_finger=False).values_pf[0][0]
-    cp_touched = cp_pad if touched is None else reduced_network(
-        touched, [PAD], setup, with_finger=True).values_pf[0][0]
+    finger, through the setup's body and earth network (pF).
+
+    A ``SHIELD`` node in the matrices is driven with the pad: both held at
+    the same potential, the controller sees the pad's charge only, the sum
+    of the pad's row over pad and shield after the reduction (C_pp + C_ps;
+    Maxwell's coefficients, Smythe 1968 ch. 2).
+    """
+    cp_pad = _driven_pf(baseline, setup, with_finger=False)
+    cp_touched = cp_pad if touched is None else _driven_pf(touched, setup, with_finger=True)
     return cp_pad, cp_touched
+
+
+def _driven_pf(matrix: CapacitanceMatrix, setup: PadSetup, with_finger: bool) -> float:
+    keep = [PAD, SHIELD] if SHIELD in matrix.names else [PAD]
+    return float(sum(reduced_network(matrix, keep, setup, with_finger).values_pf[0]))
 
 
 def estimate_precise(setup: PadSetup, cell_mm: float = 0.25) -> PadSolve:

@@ -101,7 +101,8 @@ def _coplanar(mapped: FieldInput, cover_mm: float) -> str:
     shield = [n for n in near.nets if is_shield_net(n)]
     what = f"driven shield {shield[0]}" if shield else f"signal copper {near.nets[0]}"
     return (f"{what} {near.typical_gap_mm:.2f} mm beside {near.outline_share:.0%} of the "
-            "outline (not in the disk model; held at ground in 3-D)")
+            "outline (not in the disk model; in 3-D a shield follows the pad, a signal is "
+            "held at ground)")
 
 
 def _aspect(sensor: Sensor) -> float:
@@ -129,6 +130,17 @@ def _partial(coppers: tuple[LayerCopper, ...]) -> str:
     return ""
 
 
+def _shield(coppers: tuple[LayerCopper, ...]) -> str:
+    for copper in coppers:
+        for _name, share, nets in copper.classes:
+            shields = [n for n in nets if is_shield_net(n)]
+            if shields and share >= MIN_FRONT_COVER:
+                return (f"driven shield {shields[0]} on {copper.layer} under {share:.0%} of the "
+                        "electrode (the disk model holds it at ground; in 3-D it follows the "
+                        "pad)")
+    return ""
+
+
 def _neighbour(sensor: Sensor, cover_mm: float) -> str:
     surround = sensor.surroundings
     distance = surround.nearest_sensor_mm if surround else None
@@ -149,6 +161,7 @@ def _checks(sensor: Sensor, mapped: FieldInput) -> tuple[Callable[[], str], ...]
         lambda: (f"copper fills {share:.0%} of its outline (hatched or perforated)"
                  if share < MIN_SOLID_SHARE else ""),
         lambda: _front(mapped.coppers),
+        lambda: _shield(mapped.coppers),
         lambda: _neighbour(sensor, cover),
         lambda: f"elongated ({aspect:.1f}:1)" if aspect > MAX_ASPECT else "",
         lambda: (f"notched or slotted outline (perimeter {perimeter:.2f} x the equal-area "
