@@ -87,16 +87,26 @@ def unsolved_reasons(sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetri
     return reasons
 
 
+#: An electrode's pad setup, or (``--precise``) how to map it in its own job.
+Mapped = FieldInput | Callable[[], FieldInput]
+
+
 def _routes(sensors: tuple[Sensor, ...], quick: QuickSolves, board: Board, config: Config,
             limits: Mapping[str, float | int | bool], mode: Mode
-            ) -> dict[str, tuple[Route, FieldInput]]:
-    """Model and pad setup of every self-capacitance electrode."""
-    out: dict[str, tuple[Route, FieldInput]] = {}
+            ) -> dict[str, tuple[Route, Mapped]]:
+    """Model and pad setup of every self-capacitance electrode. With
+    ``--precise`` every one goes 3-D whatever its setup, so the mapping is
+    left to its 3-D job, which runs beside the others (:class:`PreciseWork`)."""
+    nets = frozenset(n for s in sensors for n in s.nets)
+    out: dict[str, tuple[Route, Mapped]] = {}
     for sensor in sensors:
         if sensor.kind not in SELF_KINDS or sensor.area_mm2 <= 0:
             continue
-        mapped = quick.mapped(sensor.name) or pad_setup_for(
-            sensor, board, config, limits, frozenset(n for s in sensors for n in s.nets))
+        if mode == "precise":
+            out[sensor.name] = (forced(Route("precise", ""), mode),
+                                partial(pad_setup_for, sensor, board, config, limits, nets))
+            continue
+        mapped = quick.mapped(sensor.name) or pad_setup_for(sensor, board, config, limits, nets)
         route = route_for(sensor, mapped)
         out[sensor.name] = (route if mode == "auto" else forced(route, mode), mapped)
     return out
@@ -165,8 +175,14 @@ def _cells(sensor: Sensor) -> float:
     return float((x1 - x0 + frame) * (y1 - y0 + frame) / cell_for(sensor) ** 2)
 
 
+def _precise_job(sensor: Sensor, board: Board, config: Config, mapped: Mapped,
+                 sensors: tuple[Sensor, ...], quick: PadMetrics | None) -> PadMetrics:
+    field_input = mapped if isinstance(mapped, FieldInput) else mapped()
+    return _precise_or_quick(sensor, board, config, field_input, sensors, quick)
+
+
 def _precise_all(sensors: tuple[Sensor, ...], names: set[str],
-                 routes: Mapping[str, tuple[Route, FieldInput]],
+                 routes: Mapping[str, tuple[Route, Mapped]],
                  quick: Mapping[str, PadMetrics], board: Board, config: Config,
                  work: PreciseWork, finished: Callable[[str], None]) -> dict[str, PadMetrics]:
     """The electrodes routed to 3-D on the shared stack, run with whatever
@@ -175,7 +191,7 @@ def _precise_all(sensors: tuple[Sensor, ...], names: set[str],
     for sensor in sensors:
         if sensor.name in names:
             work.add_electrode(sensor.name, _cells(sensor), partial(
-                _precise_or_quick, sensor, board, config, routes[sensor.name][1], sensors,
+                _precise_job, sensor, board, config, routes[sensor.name][1], sensors,
                 quick.get(sensor.name)))
     work.run(finished)
     return {name: metrics if metrics.method_reason else replace(
