@@ -93,3 +93,15 @@ def test_signal_while_helpers_run_3d_jobs(tmp_path: Path, name: str, code: int,
             break
         time.sleep(0.02)
     assert not _group_alive(run.pid), "a helper outlived the run"
+
+
+@pytest.mark.slow
+def test_estimate_sweep_gives_the_same_bytes_with_two_processes(
+        capsys: pytest.CaptureFixture[str]) -> None:
+    """A ``--precise`` sweep shared with a helper prints what one process does."""
+    outputs = []
+    for jobs in ("1", "2"):
+        assert main(["estimate", "--pad-diameter", "8:10:2", "--precise", "--cell", "0.5",
+                     "--json", "--jobs", jobs]) == 0
+        outputs.append(capsys.readouterr().out)
+    assert outputs[0] == outputs[1] and '"precise"' in outputs[0]
