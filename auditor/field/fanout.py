@@ -16,7 +16,8 @@ function and the items queued before the fork are inherited, never
 pickled, so they may hold anything (boards, geometry, closures); items
 added after the helpers started, and every result, must pickle. Should a
 helper fail or die, what it had not delivered is computed again in this
-process, so an error is raised as it would be without helpers.
+process, in the order added, so the error raised is the one a single
+process would raise.
 """
 
 from __future__ import annotations
@@ -205,8 +206,9 @@ class Fanout(Generic[Item, Result]):
 
     def _share_the_rest(self, on_done: Callable[[int], None] | None) -> None:
         """Run what is still queued here while the helpers do theirs; then
-        collect their results. Whatever a failed or dead helper left is run
-        afterwards by :meth:`results`."""
+        collect their results. Whatever failed, here or in a helper, or a
+        dead helper left, is run afterwards by :meth:`results` in the order
+        added, so the error raised is the one a single process raises first."""
         claimed: set[int] = set()
         while True:
             try:
@@ -214,7 +216,10 @@ class Fanout(Generic[Item, Result]):
             except queue.Empty:
                 break
             claimed.add(index)
-            self._done[index] = self._run(self._items[index])  # the caller's object
+            try:
+                self._done[index] = self._run(self._items[index])  # the caller's object
+            except Exception:  # noqa: BLE001 - run again, in order, by results()
+                continue
             if on_done is not None:
                 on_done(index)
         for _ in self._helpers:
