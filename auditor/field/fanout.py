@@ -142,11 +142,6 @@ class Fanout(Generic[Item, Result]):
         self._tasks: Any = None
         self._results: Any = None
 
-    @property
-    def processes(self) -> int:
-        """Processes this fan-out may use, this one included."""
-        return self._processes
-
     def add(self, item: Item) -> int:
         """Queue ``item``; returns its position in :meth:`results`."""
         index = len(self._items)

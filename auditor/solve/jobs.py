@@ -55,11 +55,6 @@ class PreciseWork:
         self._names: list[str] = []
         self._first_electrode = 0
 
-    @property
-    def processes(self) -> int:
-        """Processes the jobs may use, this one included."""
-        return self._fanout.processes
-
     def add_extras(self, board: Board, sensors: tuple[Sensor, ...], config: Config) -> None:
         """Queue the coupling table and the slider and wheel scans."""
         # Imported here for start-up speed only: the scans load
