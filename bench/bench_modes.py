@@ -2,8 +2,9 @@
 
 Run: ``python bench/bench_modes.py [--boards PATH ...] [--only-demo]``.
 
-For the demo board and the field fixtures (``fixtures/field``, written by
-``fixtures/make_field_boards.py``) each mode runs as ``padaudit audit
+For the demo board, the field fixtures (``fixtures/field``, written by
+``fixtures/make_field_boards.py``) and the mutual-pair fixtures
+(``fixtures/mutual``, ``fixtures/make_mutual_boards.py``) each mode runs as ``padaudit audit
 --format json`` in a fresh interpreter (start-up and imports included):
 ``--quick`` (the disk model everywhere), the default automatic mode, and
 ``--precise`` (3-D everywhere, plus the coupling table and slider scans it
@@ -35,6 +36,7 @@ from typing import Any
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "auditor" / "demo" / "front_panel.kicad_pcb"
 FIELD = ROOT / "fixtures" / "field"
+MUTUAL = ROOT / "fixtures" / "mutual"
 AGREEMENT_GOAL = 0.10
 TIME_RATIO_GOAL = 3.0
 MODES = {"quick": ["--quick"], "auto": [], "precise": ["--precise"]}
@@ -104,13 +106,15 @@ def bench_board(board: Path, jobs: str = "auto") -> dict[str, Any]:
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.split("\n")[0])
     parser.add_argument("--boards", nargs="*", type=Path,
-                        help="boards to run (default: the demo and fixtures/field)")
+                        help="boards to run (default: the demo, fixtures/field and "
+                             "fixtures/mutual)")
     parser.add_argument("--only-demo", action="store_true", help="the demo board only")
     parser.add_argument("--jobs", default="auto", metavar="N|auto",
                         help="processes per audit, passed on as --jobs (default auto)")
     args = parser.parse_args(argv)
     boards = args.boards or ([DEMO] if args.only_demo
-                             else [DEMO, *sorted(FIELD.glob("*.kicad_pcb"))])
+                             else [DEMO, *sorted(FIELD.glob("*.kicad_pcb")),
+                                   *sorted(MUTUAL.glob("*.kicad_pcb"))])
     cores = len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else os.cpu_count()
     print(f"load average before: {os.getloadavg()[0]:.1f} on {cores} cores; --jobs {args.jobs}"
           " (auto: one process per core unless the load average is at least cores - 0.5)")

@@ -2,7 +2,7 @@
 
 :func:`solve_sensors` dispatches every sensor to the quick solve
 (:mod:`auditor.solve.quick`), the 3-D solve (:mod:`auditor.solve.precise`)
-or the mutual pair model (:mod:`auditor.solve.mutual`) — in the automatic
+or the mutual pair models (:mod:`auditor.solve.mutual_pairs`) — in the automatic
 mode as :func:`auditor.solve.route.route_for` decides — and
 :func:`unsolved_reasons` says why a sensor got no metrics. The audit entry
 (:mod:`auditor.audit`) calls only this module of the stage.
@@ -23,7 +23,7 @@ from auditor.model.vocabulary import SELF_KINDS
 from auditor.sensors.model import Sensor
 from auditor.solve.jobs import PreciseWork
 from auditor.solve.lumped import with_lumped_parts
-from auditor.solve.mutual import metrics_for_mutual, mutual_partner
+from auditor.solve.mutual_pairs import mutual_metrics
 from auditor.solve.quick import QuickSolves, metrics_from_quick
 from auditor.solve.route import Route, forced, route_for
 from auditor.solve.setup import FieldInput, pad_setup_for, quick_unfit_reason
@@ -148,22 +148,16 @@ def solve_sensors(board: Board, sensors: tuple[Sensor, ...], config: Config, *,
     out = quick.metrics(lambda name: None if name in to_3d else in_order.finish(name))
     out.update(_precise_all(sensors, to_3d, routes, out, board, config,
                             work or PreciseWork(workers), in_order.finish))
+    pairs = mutual_metrics(sensors, board, config, limits, mode)
     for sensor in sensors:
         if sensor.kind == "mutual-rx":
-            tx = mutual_partner(sensor, sensors)
-            if tx is not None:
-                out[sensor.name] = replace(
-                    metrics_for_mutual(sensor, tx, board, config, limits),
-                    method_reason=MUTUAL_REASON)
+            if sensor.name in pairs:
+                out[sensor.name] = pairs[sensor.name]
         elif sensor.name in routes and sensor.name in out and not out[sensor.name].method_reason:
             out[sensor.name] = replace(out[sensor.name],
                                        method_reason=routes[sensor.name][0].reason)
         in_order.finish(sensor.name)
     return with_lumped_parts(out, sensors, board, limits)
-
-
-#: The mutual pair has no 3-D solve in the audit yet.
-MUTUAL_REASON = "disk and ring model of the pair (no 3-D solve of mutual pairs)"
 
 
 def _cells(sensor: Sensor) -> float:

@@ -50,7 +50,14 @@ from auditor.field.pad_model import DEFAULT_GROUND_MARGIN_MM
 from auditor.model.board import Board
 from auditor.model.vocabulary import PadSide
 from auditor.sensors.model import Sensor
-from auditor.solve.shadows import LayerCopper, describe, layer_copper, measured_fill
+from auditor.solve.shadows import (
+    Coplanar,
+    LayerCopper,
+    coplanar_unmodelled,
+    describe,
+    layer_copper,
+    measured_fill,
+)
 from auditor.solve.stack import board_layers_from_touch, overlay_with_mask, touch_mask
 from auditor.solve.traces import trace_runs_for
 
@@ -69,6 +76,8 @@ class FieldInput:
     notes: tuple[str, ...]
     #: Other nets' copper on the other layers (what the automatic mode reads).
     coppers: tuple[LayerCopper, ...] = ()
+    #: Signals or a driven shield beside the pad on its layer (not in the disk).
+    coplanar: Coplanar | None = None
 
 
 def significant(value: float, digits: int = 3) -> float:
@@ -183,7 +192,7 @@ def _front_fields(front: LayerCopper | None, board: Board,
 
 def _copper_notes(coppers: tuple[LayerCopper, ...], notes: list[str]) -> None:
     for copper in coppers:
-        if not copper.empty:
+        if not copper.empty or copper.sparse_rings:
             notes.append(describe(copper))
     held = {name for c in coppers if not c.empty for name, _, _ in c.classes} - {"ground"}
     if held:
@@ -233,7 +242,8 @@ def pad_setup_for(sensor: Sensor, board: Board, config: Config,
         vias=sensor.path.vias if sensor.path else 0)
     setup = replace(setup, **_plane_fields(behind, sensor), **_front_fields(front, board, sensor))  # type: ignore[arg-type]
     snapped = snapped_to_finger(setup, notes)
-    return FieldInput(snapped, tuple(notes), coppers)
+    return FieldInput(snapped, tuple(notes), coppers,
+                      coplanar_unmodelled(board, sensor, electrode_nets))
 
 
 #: Pad or ring edges closer than this to the finger's edge (at another

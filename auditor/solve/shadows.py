@@ -22,6 +22,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+import numpy as np
 import shapely
 from shapely.geometry import Point
 from shapely.geometry.base import BaseGeometry
@@ -30,6 +31,7 @@ from auditor.model.board import Board
 from auditor.model.items import HatchSettings
 from auditor.sensors.model import LayerShadow, Sensor
 from auditor.sensors.spatial import Piece, pieces_in
+from auditor.sensors.surround import outline_points
 from auditor.solve.traces import dielectric_between_mm
 
 #: Rings at least this many times the depth of the copper wide: sparse copper
@@ -45,6 +47,15 @@ COVER_STEP = 0.05
 #: tenth missing, rendered as a narrower annulus, moved the demo's button Cp
 #: by 3-6 % against the whole plane while the 3-D solve moved less than 2 %.
 WHOLE_COVER = 0.85
+#: A ring covered less than this is left out of the profile: scattered
+#: copper (a few traces, part pads) rendered as closed rings one ring apart
+#: is a grating finer than its depth, which screens like a plane. Measured
+#: on real 8.5 mm keys with traces under 5-15 % of each ring from the pad's
+#: edge outwards (1.5 mm below): quick Cp 12-31 % over the 3-D solve with
+#: the rings kept, 2.6-6.5 % under it with them left out (ΔC within 2 %
+#: either way). Copper under the pad itself is judged by its share of the
+#: pad (:mod:`auditor.solve.route`), not by this.
+SPARSE_COVER = 0.2
 CLASSES = ("ground", "electrodes", "signals")
 
 
@@ -69,6 +80,7 @@ class LayerCopper:
     pad_cover: float
     offset: float
     classes: tuple[tuple[str, float, tuple[str, ...]], ...]
+    sparse_rings: int = 0
 
     @property
     def whole(self) -> bool:
@@ -100,6 +112,8 @@ def radial_cover(copper: BaseGeometry, centre: Point, edges: tuple[float, ...]) 
 
 
 def _stepped(value: float) -> float:
+    if value < SPARSE_COVER:
+        return 0.0
     return 1.0 if value >= WHOLE_COVER else round(round(value / COVER_STEP) * COVER_STEP, 4)
 
 
@@ -166,8 +180,44 @@ def layer_copper(board: Board, sensor: Sensor, layer: str, outer_mm: float,
             classes.append((name, share / area, tuple(sorted({p.item.net for p in part}))))
     pad_cover = float(extent.intersection(sensor.geometry).area) / area
     profile = tuple((e, _stepped(c)) for e, c in zip(edges, cover, strict=True))
+    sparse = sum(1 for c in cover if 0.0 < c < SPARSE_COVER)
     return LayerCopper(layer, depth, in_front, profile, 1.0 if fill is None else fill,
-                       min(pad_cover, 1.0), offset, tuple(classes))
+                       min(pad_cover, 1.0), offset, tuple(classes), sparse)
+
+
+#: How far around the electrode coplanar copper is looked for (the sensors
+#: stage's default gap search, :class:`auditor.sensors.selection.SensorSelection`).
+COPLANAR_SEARCH_MM = 3.0
+
+
+@dataclass(frozen=True)
+class Coplanar:
+    """Copper of other nets beside the electrode that the disk model leaves out
+    (not the device ground, not another electrode): its typical gap (median
+    along the outline, sample points with none within the search left out),
+    and the share of the outline that has such copper within the search."""
+
+    nets: tuple[str, ...]
+    typical_gap_mm: float
+    outline_share: float
+
+
+def coplanar_unmodelled(board: Board, sensor: Sensor,
+                        electrode_nets: frozenset[str]) -> Coplanar | None:
+    """Signals or a driven shield beside the electrode on its own layer."""
+    ground = sensor.surroundings.ground_net if sensor.surroundings else ""
+    skip = {*sensor.nets, *electrode_nets, ground}
+    pieces = pieces_in(board, sensor.layer, sensor.geometry.buffer(COPLANAR_SEARCH_MM),
+                       lambda it: it.net not in skip)
+    if not pieces:
+        return None
+    samples = outline_points(sensor.geometry)
+    _, dists = shapely.STRtree([p.geometry for p in pieces]).query_nearest(
+        samples, max_distance=COPLANAR_SEARCH_MM, return_distance=True, all_matches=False)
+    if len(dists) == 0:
+        return None
+    return Coplanar(tuple(sorted({p.item.net for p in pieces})), float(np.median(dists)),
+                    len(dists) / len(samples))
 
 
 def measured_fill(shadows: tuple[LayerShadow, ...], copper: LayerCopper) -> float:
@@ -189,5 +239,7 @@ def describe(copper: LayerCopper) -> str:
              + (f"under {share:.0%} of the pad" if share >= 0.005 else "beside the pad")
              for name, share, nets in copper.classes]
     rings = ", ".join(f"{c:g} to {r:g} mm" for r, c in copper.profile)
+    sparse = (f"; {copper.sparse_rings} ring(s) under {SPARSE_COVER:.0%} copper left out "
+              "(scattered copper)" if copper.sparse_rings else "")
     return (f"copper on {copper.layer} {where} the pad ({copper.depth_mm:g} mm): "
-            f"{'; '.join(parts) or 'none'}; ring coverage {rings}")
+            f"{'; '.join(parts) or 'none'}; ring coverage {rings}{sparse}")

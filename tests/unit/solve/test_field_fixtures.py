@@ -23,7 +23,9 @@ from auditor.model.results import PadMetrics
 from auditor.read import read_board
 from auditor.sensors import find_sensors
 from auditor.sensors.model import Sensor
+from auditor.solve import shadows
 from auditor.solve.precise import metrics_from_precise
+from auditor.solve.route import Route, route_for
 from auditor.solve.setup import FieldInput, fill_step, pad_setup_for
 
 FIELD = Path(__file__).resolve().parents[3] / "fixtures" / "field"
@@ -112,7 +114,7 @@ def test_copper_in_front_is_modelled() -> None:
 
 
 @pytest.mark.parametrize("name", ["shadow-traces", "shadow-corner", "shadow-cutout",
-                                  "front-pour"])
+                                  "front-pour", "slotted-key", "sparse-back"])
 def test_electrodes_left_to_the_disk_agree_with_3d(name: str) -> None:
     """Item 4: what the automatic mode gives the disk model is within 10 % of
     the 3-D solve in Cp pad and ΔC."""
@@ -126,3 +128,45 @@ def test_electrodes_left_to_the_disk_agree_with_3d(name: str) -> None:
         assert result.metrics is not None
         assert _off(result.metrics.cp_pad_pf, precise.cp_pad_pf) < AGREEMENT, result.sensor.name
         assert _off(result.metrics.delta_c_pf, precise.delta_c_pf) < AGREEMENT, result.sensor.name
+
+
+def _quick_and_precise(name: str, electrode: str) -> tuple[PadSolve, PadMetrics, Route]:
+    """The quick solve, the 3-D solve and the automatic route of one electrode."""
+    board, sensors, mapped, setup = _board(name)
+    sensor = next(s for s in sensors if s.name == electrode)
+    precise = metrics_from_precise(sensor, board, setup.config,  # type: ignore[attr-defined]
+                                   mapped[electrode], sensors)
+    return solve_pad(mapped[electrode].setup), precise, route_for(sensor, mapped[electrode])
+
+
+def test_slotted_key_is_solved_in_3d() -> None:
+    """A key slotted from its edge past its centre (a hole for a reverse-mount
+    LED, as on real boards): the equal-area disk's ΔC is over 10 % off the 3-D
+    solve (the finger cannot sit on the centroid, which lies in the slot, and
+    the disk misses the slot's edges). The old routing left it to the disk;
+    now its outline's perimeter sends it to 3-D."""
+    quick, precise, route = _quick_and_precise("slotted-key", "TOUCH1")
+    assert _off(quick.delta_c_pf, precise.delta_c_pf) > AGREEMENT
+    assert route.method == "precise" and "slotted" in route.reason
+
+
+def test_sparse_traces_behind_stay_sparse(monkeypatch: pytest.MonkeyPatch) -> None:
+    """Thin traces beside the keys on B.Cu (5-15 % of each ring): as closed rings
+    one ring apart (the old profile) they screened like a plane, quick Cp over
+    10 % above the 3-D solve; left out of the profile, within 10 %."""
+    quick, precise, route = _quick_and_precise("sparse-back", "TOUCH2")
+    assert route.method == "quick"
+    assert _off(quick.cp_pad_pf, precise.cp_pad_pf) < AGREEMENT
+    monkeypatch.setattr(shadows, "SPARSE_COVER", 0.0)
+    old, _, _ = _quick_and_precise("sparse-back", "TOUCH2")
+    assert old.cp_pad_pf > (1.0 + AGREEMENT) * precise.cp_pad_pf
+
+
+def test_driven_shield_beside_the_pad_is_solved_in_3d() -> None:
+    """A driven shield pour 0.25 mm around the pad and none of the device
+    ground: the disk has no coplanar copper and its Cp is over 10 % under the
+    3-D solve (which holds the shield at ground, as the other nets). The old
+    routing left it to the disk; now the shield sends it to 3-D."""
+    quick, precise, route = _quick_and_precise("shield-ring", "TOUCH1")
+    assert _off(quick.cp_pad_pf, precise.cp_pad_pf) > AGREEMENT
+    assert route.method == "precise" and "driven shield AC_SHIELD" in route.reason

@@ -117,7 +117,8 @@ def test_mutual_pair_maps_to_disk_and_ring(boards, monkeypatch) -> None:  # type
     tests/unit/field). Hand computation: 10 mm pads 16 mm apart -> inner disk
     d 10 mm, gap 6 mm, ring of the same 78.41 mm^2 from r = 11 mm:
     width sqrt(11^2 + 78.41/pi) - 11 = 1.081 mm. The receiver gets Cm, the
-    transmitter no entry."""
+    transmitter no entry. Side by side, the automatic mode would solve the
+    pair in 3-D (tests/unit/solve/test_mutual_pairs.py): ``--quick`` here."""
     import auditor.solve.mutual as pf
     from auditor.field.api import MutualSolve
     from auditor.field.matrix import CapacitanceMatrix
@@ -132,8 +133,10 @@ def test_mutual_pair_maps_to_disk_and_ring(boards, monkeypatch) -> None:  # type
     board, sensors, config = boards["base"]
     tx, rx = (replace(s, kind=kind) for s, kind in zip(sensors, ("mutual-tx", "mutual-rx"),
                                                          strict=True))
-    result = solve_sensors(board, (tx, rx), config)
+    result = solve_sensors(board, (tx, rx), config, mode="quick")
     assert set(result) == {rx.name}
+    assert "the automatic mode would use 3-D: interleaved or side by side" in (
+        result[rx.name].method_reason)
     (setup,) = seen
     assert setup.inner_diameter_mm == pytest.approx(10.0, rel=2e-3)
     assert setup.electrode_gap_mm == pytest.approx(6.0, abs=0.02)

@@ -1,0 +1,172 @@
+"""Every mutual pair of the audit: which model answers, and the answers.
+
+The quick model of a pair is an inner disk and a concentric ring of the
+same areas at the measured gap (:mod:`auditor.solve.mutual`). It stands for
+a pair where one electrode sits in the other's opening with an even gap all
+round. Interleaved (comb, spiral), side-by-side or stacked pairs (tx and rx
+on different layers) are not that: the automatic mode sends them to the 3-D
+solve (:mod:`auditor.solve.mutual_precise`) and says why. ``--quick`` keeps
+the disk and ring, ``--precise`` solves every pair in 3-D.
+
+Keys of a keyboard repeat one footprint: pairs of equal copper up to a
+translation share one 3-D solve (as equal pads share one quick solve); the
+notes name the pair that was solved.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+from dataclasses import replace
+
+import shapely
+from shapely.affinity import translate
+from shapely.geometry import Polygon
+
+from auditor.config import Config
+from auditor.errors import UsageError
+from auditor.model.board import Board
+from auditor.model.results import PadMetrics
+from auditor.sensors.model import Sensor
+from auditor.solve.mutual import metrics_for_mutual, mutual_partner
+from auditor.solve.route import Method, Route, forced
+from auditor.solve.setup import pad_setup_for
+
+#: Copper share of its outline below which the inner electrode is no plate.
+MIN_SOLID_SHARE = 0.9
+#: Hole area over the inner electrode grown by the gap, beyond which the gap
+#: is uneven around it (common practice, no source).
+MAX_HOLE_EXCESS = 0.25
+#: Largest area of the shapes' difference, as a share of their area, for two
+#: pairs to count as equal (polygonised arcs differ a little by position).
+SAME_SHAPE_SHARE = 0.005
+
+
+def _solid_share(geometry: shapely.Geometry) -> float:
+    outline = sum(Polygon(p.exterior).area for p in shapely.get_parts(geometry))
+    return float(geometry.area / outline) if outline > 0 else 1.0
+
+
+def _hole_around(inner: Sensor, outer: Sensor) -> Polygon | None:
+    """The opening of ``outer`` that holds ``inner``, if there is one."""
+    for part in shapely.get_parts(outer.geometry):
+        for ring in getattr(part, "interiors", ()):
+            hole = Polygon(ring)
+            if hole.contains(inner.geometry):
+                return hole
+    return None
+
+
+def disk_ring_misfit(rx: Sensor, tx: Sensor) -> str:
+    """Why the disk-and-ring model cannot hold this pair ("" when it can)."""
+    if rx.layer != tx.layer:
+        return f"tx on {tx.layer}, rx on {rx.layer} (stacked, not coplanar)"
+    inner, outer = sorted((rx, tx), key=lambda s: (s.area_mm2, s.name))
+    hole = _hole_around(inner, outer)
+    if hole is None:
+        hole = _hole_around(outer, inner)
+        inner, outer = outer, inner
+    if hole is None:
+        return "interleaved or side by side: neither electrode lies in an opening of the other"
+    if _solid_share(inner.geometry) < MIN_SOLID_SHARE:
+        return f"the inner electrode {inner.name} is no plate (comb, hatched or perforated)"
+    gap = inner.geometry.distance(outer.geometry)
+    expected = inner.geometry.buffer(gap).area
+    if hole.area > expected * (1.0 + MAX_HOLE_EXCESS):
+        return f"uneven gap around {inner.name} (opening {hole.area / expected:.2f} x the " \
+               "disk model's)"
+    return ""
+
+
+def pair_route(rx: Sensor, tx: Sensor, mode: str) -> Route:
+    """The model for one pair in ``mode`` ("auto", "quick" or "precise"), and why."""
+    misfit = disk_ring_misfit(rx, tx)
+    route = (Route("precise", f"3-D: {misfit}") if misfit else
+             Route("quick", "disk and ring model: one electrode in the other's opening, "
+                            "even gap"))
+    if mode == "auto":
+        return route
+    method: Method = "precise" if mode == "precise" else "quick"
+    return forced(route, method)
+
+
+def _shape_key(rx: Sensor, tx: Sensor) -> tuple[str, str, shapely.Geometry, shapely.Geometry]:
+    x0, y0, _, _ = shapely.union_all([rx.geometry, tx.geometry]).bounds
+    return (rx.layer, tx.layer, translate(rx.geometry, -x0, -y0),
+            translate(tx.geometry, -x0, -y0))
+
+
+def _same_shape(a: tuple[str, str, shapely.Geometry, shapely.Geometry],
+                b: tuple[str, str, shapely.Geometry, shapely.Geometry]) -> bool:
+    if a[:2] != b[:2]:
+        return False
+    return all(g.symmetric_difference(h).area <= SAME_SHAPE_SHARE * max(g.area, 1e-9)
+               for g, h in ((a[2], b[2]), (a[3], b[3])))
+
+
+def mutual_metrics(sensors: tuple[Sensor, ...], board: Board, config: Config,
+                   limits: Mapping[str, float | int | bool], mode: str
+                   ) -> dict[str, PadMetrics]:
+    """Metrics of every mutual receive electrode with a partner, by its route.
+
+    3-D solves are shared by pairs of equal copper up to a translation (the
+    first pair by name is solved; the others' notes name it).
+    """
+    out: dict[str, PadMetrics] = {}
+    solved: list[tuple[tuple[str, str, shapely.Geometry, shapely.Geometry], str,
+                       PadMetrics]] = []
+    for rx in sorted((s for s in sensors if s.kind == "mutual-rx"), key=lambda s: s.name):
+        tx = mutual_partner(rx, sensors)
+        if tx is None:
+            continue
+        route = pair_route(rx, tx, mode)
+        quick = _quick(rx, tx, board, config, limits)
+        metrics = quick
+        if route.method == "precise":
+            metrics = _precise(rx, tx, board, config, limits, sensors, quick, solved)
+        if metrics is not None:
+            out[rx.name] = metrics if metrics.method_reason else replace(
+                metrics, method_reason=route.reason)
+    return out
+
+
+def _quick(rx: Sensor, tx: Sensor, board: Board, config: Config,
+           limits: Mapping[str, float | int | bool]) -> PadMetrics | None:
+    """The disk-and-ring metrics, or None when the pair cannot be mapped onto
+    it (e.g. a transmit electrode larger than the ground's reach)."""
+    try:
+        return metrics_for_mutual(rx, tx, board, config, limits)
+    except UsageError:
+        return None
+
+
+def _precise(rx: Sensor, tx: Sensor, board: Board, config: Config,
+             limits: Mapping[str, float | int | bool], sensors: tuple[Sensor, ...],
+             quick: PadMetrics | None,
+             solved: list[tuple[tuple[str, str, shapely.Geometry, shapely.Geometry], str,
+                                PadMetrics]]) -> PadMetrics | None:
+    """The pair's 3-D metrics, from an equal pair's solve when there is one
+    (None when neither model can take the pair)."""
+    # Imported here for start-up speed: the 3-D solver loads scipy.interpolate.
+    from auditor.solve.mutual_precise import metrics_for_mutual_precise
+
+    key = _shape_key(rx, tx)
+    for other_key, name, metrics in solved:
+        if _same_shape(key, other_key):
+            own = f"mutual pair {tx.name} -> {rx.name}: " + metrics.notes[0].split(": ", 1)[1]
+            return replace(metrics, notes=(own, f"3-D solve shared with {name} (same copper "
+                                                "up to a translation; its surroundings were "
+                                                "solved)", *metrics.notes[1:3]),
+                           quick_cp_pad_pf=quick.cp_pad_pf if quick else None,
+                           quick_cp_total_pf=quick.cp_total_pf if quick else None,
+                           quick_delta_c_pf=quick.delta_c_pf if quick else None)
+    mapped = pad_setup_for(rx, board, config, limits)
+    try:
+        metrics = metrics_for_mutual_precise(rx, tx, board, config, mapped, sensors, quick)
+    except (UsageError, KeyError) as exc:
+        if quick is None:
+            return None
+        return replace(quick, notes=(f"3-D solve of the pair not possible ({exc}); disk and "
+                                     "ring estimate shown", *quick.notes),
+                       method_reason=f"3-D solve not possible ({exc})")
+    solved.append((key, rx.name, metrics))
+    return metrics
