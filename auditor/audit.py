@@ -31,7 +31,7 @@ from auditor.rules.registry import RuleSpec, all_rules, run_rules
 from auditor.sensors import find_sensors, mark_sense_neighbours, measure_each
 from auditor.sensors.model import Sensor, name_order
 from auditor.sensors.selection import SensorSelection
-from auditor.solve.dispatch import Mode, QuickSolves, unsolved_reasons
+from auditor.solve.dispatch import Mode, PreciseWork, QuickSolves, unsolved_reasons
 from auditor.solve.dispatch import solve_sensors as field_solve
 
 if TYPE_CHECKING:  # the precise solver pulls in scipy.interpolate: load it only when used
@@ -62,6 +62,9 @@ class AuditOptions:
     config_baseline: bool = False
     #: Attach predicted fixes to the findings (:mod:`auditor.audit_suggest`).
     suggest: bool = False
+    #: Processes for the field solves, this one included (None: automatic,
+    #: one per idle core; see :func:`auditor.field.fanout.process_count`).
+    workers: int | None = None
 
 
 @dataclass(frozen=True)
@@ -105,13 +108,15 @@ def measuring_selection(setup: AuditSetup) -> SensorSelection:
 
 def solve_sensors(board: Board, sensors: tuple[Sensor, ...], setup: AuditSetup,
                   options: AuditOptions, quick: QuickSolves | None = None,
-                  ) -> dict[str, PadMetrics]:
+                  work: PreciseWork | None = None) -> dict[str, PadMetrics]:
     """Field metrics per sensor name, each from the model the solve mode
     picks (:func:`solve_mode`); sensors the solver cannot map get no entry
     and are reported ``unsolved`` (no number is made up). ``quick``: the
-    quick solves already started by :func:`_measured`."""
+    quick solves already started by :func:`_measured`; ``work``: 3-D jobs
+    to run together with the electrodes' (:func:`_precise_work`)."""
     return field_solve(board, sensors, setup.config, mode=solve_mode(options),
-                       progress=options.progress, thresholds=setup.thresholds, quick=quick)
+                       progress=options.progress, thresholds=setup.thresholds, quick=quick,
+                       workers=options.workers, work=work)
 
 
 def solve_mode(options: AuditOptions) -> Mode:
@@ -128,7 +133,8 @@ def _measured(board: Board, found: tuple[Sensor, ...], selection: SensorSelectio
     quick = None
     if options.solve and not options.precise:
         nets = frozenset(net for sensor in found for net in sensor.nets)
-        quick = QuickSolves(board, setup.config, setup.thresholds, electrode_nets=nets)
+        quick = QuickSolves(board, setup.config, setup.thresholds, options.workers,
+                            electrode_nets=nets)
     measured = []
     for sensor in measure_each(board, found, selection):
         measured.append(sensor)
@@ -184,9 +190,10 @@ def run_audit(board_path: str | Path, options: AuditOptions | None = None) -> Re
     selection = measuring_selection(setup)
     found, _rejects = find_sensors(board, selection)
     sensors, quick = _measured(board, found, selection, setup, opts)
+    work = _precise_work(board, sensors, setup, opts)
     metrics, broken = _without_unfollowed(
-        sensors, solve_sensors(board, sensors, setup, opts, quick) if opts.solve else {})
-    extras = _precise_extras(board, sensors, setup) if opts.solve and opts.precise else None
+        sensors, solve_sensors(board, sensors, setup, opts, quick, work) if opts.solve else {})
+    extras = work.extras() if work is not None else None
     unsolved = {**_unsolved(sensors, metrics, opts), **broken} if opts.solve else {}
     report = build_report(board, sensors, metrics, setup, extras, unsolved)
     if opts.solve and opts.suggest:
@@ -237,15 +244,16 @@ def _without_unfollowed(sensors: tuple[Sensor, ...], metrics: dict[str, PadMetri
     return kept, {name: UNFOLLOWED_REASON for name in sorted(broken & set(metrics))}
 
 
-def _precise_extras(board: Board, sensors: tuple[Sensor, ...],
-                    setup: AuditSetup) -> PreciseExtras:
-    """Pad-to-pad coupling and slider/wheel response (``--precise`` only:
-    each costs several 3-D solves)."""
-    # Imported here for start-up speed only: the slider scans load
-    # scipy.interpolate, which only --precise needs.
-    from auditor.solve.extras import precise_extras
-
-    return precise_extras(board, sensors, setup.config)
+def _precise_work(board: Board, sensors: tuple[Sensor, ...], setup: AuditSetup,
+                  options: AuditOptions) -> PreciseWork | None:
+    """With ``--precise``, the 3-D jobs with the pad-to-pad coupling and the
+    slider/wheel response queued (each costs several 3-D solves); they run
+    together with the electrodes' own, longest first."""
+    if not (options.solve and options.precise):
+        return None
+    work = PreciseWork(options.workers)
+    work.add_extras(board, sensors, setup.config)
+    return work
 
 
 def shown_path(path: str) -> str:

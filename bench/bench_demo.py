@@ -142,7 +142,7 @@ def board20_s() -> tuple[float, float, int]:
             vias=i % 3))
     pad_model.field_matrices.cache_clear()
     crosssection.trace_pf_per_mm.cache_clear()
-    workers = batch._process_count(None)
+    workers = batch.process_count(None)
     _, wall, cpu = _timed(lambda: batch.solve_pads(setups))
     return wall, cpu, workers
 

@@ -35,7 +35,7 @@ def options_from_args(args: argparse.Namespace) -> AuditOptions:
         solve=not getattr(args, "no_solve", False),
         precise=bool(getattr(args, "precise", False)),
         quick=bool(getattr(args, "quick", False)),
-        suggest=bool(getattr(args, "suggest", False)))
+        suggest=bool(getattr(args, "suggest", False)), workers=getattr(args, "jobs", None))
 
 
 def gated_options(args: argparse.Namespace) -> AuditOptions:

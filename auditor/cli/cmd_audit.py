@@ -13,6 +13,7 @@ from auditor.audit import run_audit
 from auditor.cli.audit_runner import gated_options
 from auditor.cli.options import (
     add_fail_on,
+    add_jobs,
     add_no_suggest,
     add_overlay,
     add_power,
@@ -45,6 +46,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
                              "reported unsolved")
     add_solve_mode(parser, "; adds pad-to-pad coupling and slider response")
     add_no_suggest(parser)
+    add_jobs(parser)
     add_report_options(parser)
 
 

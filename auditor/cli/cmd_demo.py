@@ -17,7 +17,7 @@ import textwrap
 from auditor.audit import run_audit
 from auditor.cli.audit_runner import gated_options, shown_as
 from auditor.cli.main import EXIT_CLEAN, EXIT_FINDINGS
-from auditor.cli.options import add_no_suggest, add_solve_mode
+from auditor.cli.options import add_jobs, add_no_suggest, add_solve_mode
 from auditor.cli.progress import ProgressCallback
 from auditor.cli.report_options import add_report_options, emit
 from auditor.demo import demo_board_path, demo_config_path
@@ -36,6 +36,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
                              "(copy it to try the other commands)")
     add_solve_mode(parser)
     add_no_suggest(parser)
+    add_jobs(parser)
     add_report_options(parser)
 
 

@@ -13,15 +13,18 @@ import argparse
 import json
 import math
 import sys
+from functools import partial
 
-from auditor.cli.options import add_overlay, add_power
+from auditor.cli.options import add_jobs, add_overlay, add_power
 from auditor.cli.wrap import write_lines
 from auditor.config.limits import LIMITS
 from auditor.config.model import Overlay
 from auditor.config.overrides import parse_overlay_spec
 from auditor.decide.cautions import cautions_for
 from auditor.errors import UsageError
-from auditor.field.api import BoardLayer, PadSetup, PadSolve, solve_pad
+from auditor.field.api import BoardLayer, PadSetup, PadSolve
+from auditor.field.batch import solve_pads
+from auditor.field.fanout import Fanout
 from auditor.field.materials import material
 from auditor.model.vocabulary import PAD_SIDES
 from auditor.report.estimate_doc import (
@@ -77,6 +80,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
     p.add_argument("--cell", default=None, metavar="MM",
                    help="cell side of the --precise solve (default 0.25)")
     p.add_argument("--json", action="store_true", help="print JSON instead of text")
+    add_jobs(p)
 
 
 def _number(option: str, text: str, name: str) -> float:
@@ -152,18 +156,30 @@ def _precise_solve(setup: PadSetup, cell_mm: float) -> PadSolve:
         raise UsageError(f"--precise: {exc}") from None
 
 
+def _precise_solves(setups: list[PadSetup], cell_mm: float,
+                    workers: int | None) -> list[PadSolve]:
+    """The 3-D solve of each diameter of a sweep, over the cores (the same
+    bits as one after the other: :class:`auditor.field.fanout.Fanout`)."""
+    fanout: Fanout[PadSetup, PadSolve] = Fanout(partial(_precise_solve, cell_mm=cell_mm),
+                                                workers)
+    for setup in setups:
+        fanout.add(setup)
+    return fanout.results()
+
+
 def run(args: argparse.Namespace) -> int:
     """Solve and print; exit 0."""
     diameters = _diameters(args.pad_diameter)
     overlay = parse_overlay_spec(args.overlay)
     setups = [_setup(args, d, overlay) for d in diameters]
-    records = [estimate_record(d, solve_pad(s)) for d, s in zip(diameters, setups, strict=True)]
+    records = [estimate_record(d, solved) for d, solved in
+               zip(diameters, solve_pads(setups, args.jobs), strict=True)]
     if args.cell is not None and not args.precise:
         raise UsageError("--cell: sets the cells of the --precise solve; add --precise")
     if args.precise:
         cell_mm = _number("--cell", args.cell or str(_PRECISE_CELL_MM), "estimate.cell_mm")
-        records = [with_precise(rec, _precise_solve(s, cell_mm))
-                   for rec, s in zip(records, setups, strict=True)]
+        records = [with_precise(rec, solved) for rec, solved in
+                   zip(records, _precise_solves(setups, cell_mm, args.jobs), strict=True)]
     cautions = cautions_for(args.power)
     label = _overlay_label(overlay)
     if args.json:

@@ -8,6 +8,7 @@ severity reaches every command that takes it.
 from __future__ import annotations
 
 import argparse
+import os
 
 from auditor.model.vocabulary import POWER_PRESETS, SEVERITY_NAMES, TOUCH_SIDES
 
@@ -79,5 +80,29 @@ def add_selection(parser: _Adder) -> None:
                         help="the touch controller's reference")
 
 
-__all__ = ["PROFILE_HELP", "add_fail_on", "add_no_suggest", "add_overlay", "add_power",
-           "add_profile", "add_selection", "add_solve_mode", "add_touch_side"]
+#: Environment variable holding the default of ``--jobs`` (a CI job can set
+#: it once for every command).
+JOBS_VARIABLE = "PADAUDIT_JOBS"
+
+
+def _job_count(text: str) -> int | None:
+    if text == "auto":
+        return None
+    if text.isdigit() and int(text) >= 1:
+        return int(text)
+    raise argparse.ArgumentTypeError(f"expected a number of processes, 1 or more, or auto "
+                                     f"(got {text!r}; also read from {JOBS_VARIABLE})")
+
+
+def add_jobs(parser: _Adder) -> None:
+    """``--jobs N|auto``: processes for the field solves (``args.jobs``: an
+    int, or None for automatic); the default comes from ``PADAUDIT_JOBS``."""
+    parser.add_argument("--jobs", type=_job_count, metavar="N|auto",
+                        default=os.environ.get(JOBS_VARIABLE) or "auto",
+                        help="processes for the field solves, this one included (default "
+                             f"auto: one per idle core, on Linux; also set by {JOBS_VARIABLE})")
+
+
+__all__ = ["JOBS_VARIABLE", "PROFILE_HELP", "add_fail_on", "add_jobs", "add_no_suggest",
+           "add_overlay", "add_power", "add_profile", "add_selection", "add_solve_mode",
+           "add_touch_side"]

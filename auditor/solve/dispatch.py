@@ -12,6 +12,7 @@ from __future__ import annotations
 
 from collections.abc import Callable, Mapping
 from dataclasses import replace
+from functools import partial
 from typing import Literal
 
 from auditor.config import Config
@@ -20,6 +21,7 @@ from auditor.model.board import Board
 from auditor.model.results import PadMetrics
 from auditor.model.vocabulary import SELF_KINDS
 from auditor.sensors.model import Sensor
+from auditor.solve.jobs import PreciseWork
 from auditor.solve.lumped import with_lumped_parts
 from auditor.solve.mutual_pairs import mutual_metrics
 from auditor.solve.quick import QuickSolves, metrics_from_quick
@@ -85,16 +87,26 @@ def unsolved_reasons(sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetri
     return reasons
 
 
+#: An electrode's pad setup, or (``--precise``) how to map it in its own job.
+Mapped = FieldInput | Callable[[], FieldInput]
+
+
 def _routes(sensors: tuple[Sensor, ...], quick: QuickSolves, board: Board, config: Config,
             limits: Mapping[str, float | int | bool], mode: Mode
-            ) -> dict[str, tuple[Route, FieldInput]]:
-    """Model and pad setup of every self-capacitance electrode."""
-    out: dict[str, tuple[Route, FieldInput]] = {}
+            ) -> dict[str, tuple[Route, Mapped]]:
+    """Model and pad setup of every self-capacitance electrode. With
+    ``--precise`` every one goes 3-D whatever its setup, so the mapping is
+    left to its 3-D job, which runs beside the others (:class:`PreciseWork`)."""
+    nets = frozenset(n for s in sensors for n in s.nets)
+    out: dict[str, tuple[Route, Mapped]] = {}
     for sensor in sensors:
         if sensor.kind not in SELF_KINDS or sensor.area_mm2 <= 0:
             continue
-        mapped = quick.mapped(sensor.name) or pad_setup_for(
-            sensor, board, config, limits, frozenset(n for s in sensors for n in s.nets))
+        if mode == "precise":
+            out[sensor.name] = (forced(Route("precise", ""), mode),
+                                partial(pad_setup_for, sensor, board, config, limits, nets))
+            continue
+        mapped = quick.mapped(sensor.name) or pad_setup_for(sensor, board, config, limits, nets)
         route = route_for(sensor, mapped)
         out[sensor.name] = (route if mode == "auto" else forced(route, mode), mapped)
     return out
@@ -103,7 +115,8 @@ def _routes(sensors: tuple[Sensor, ...], quick: QuickSolves, board: Board, confi
 def solve_sensors(board: Board, sensors: tuple[Sensor, ...], config: Config, *,
                   precise: bool = False, progress: Progress | None = None,
                   thresholds: Mapping[str, float | int | bool] | None = None,
-                  quick: QuickSolves | None = None, mode: Mode | None = None
+                  quick: QuickSolves | None = None, mode: Mode | None = None,
+                  workers: int | None = None, work: PreciseWork | None = None
                   ) -> dict[str, PadMetrics]:
     """Field metrics per sensor name (``method`` "quick" or "precise", and
     ``method_reason``).
@@ -116,21 +129,25 @@ def solve_sensors(board: Board, sensors: tuple[Sensor, ...], config: Config, *,
     unsolved; :func:`unsolved_reasons` says why) — nothing is made up. The
     quick solves run first, each distinct setup once; ``quick`` holds them
     when they were started while measuring. The electrodes routed to 3-D
-    are solved after them, together (:func:`_precise_all`). ``progress`` is
-    called as ``progress(sensor_name, done, total)``, in sensor order.
+    are solved after them, together, with the jobs ``work`` already holds
+    (the coupling table and scans of ``--precise``; :class:`PreciseWork`).
+    ``workers``: processes to solve in (None: automatic, see
+    :func:`auditor.field.fanout.process_count`). ``progress`` is called as
+    ``progress(sensor_name, done, total)``, in sensor order.
     """
     limits = thresholds or {}
     mode = mode or ("precise" if precise else "auto")
     in_order = _InOrder(sensors, progress)
     nets = frozenset(n for s in sensors for n in s.nets)
-    quick = quick or QuickSolves(board, config, limits, electrode_nets=nets)
+    quick = quick or QuickSolves(board, config, limits, workers, electrode_nets=nets)
     if mode != "precise":
         for sensor in sensors:
             quick.add(sensor)  # those added while measuring are not added again
     routes = _routes(sensors, quick, board, config, limits, mode)
     to_3d = {name for name, (route, _) in routes.items() if route.method == "precise"}
     out = quick.metrics(lambda name: None if name in to_3d else in_order.finish(name))
-    out.update(_precise_all(sensors, to_3d, routes, out, board, config))
+    out.update(_precise_all(sensors, to_3d, routes, out, board, config,
+                            work or PreciseWork(workers), in_order.finish))
     pairs = mutual_metrics(sensors, board, config, limits, mode)
     for sensor in sensors:
         if sensor.kind == "mutual-rx":
@@ -143,21 +160,37 @@ def solve_sensors(board: Board, sensors: tuple[Sensor, ...], config: Config, *,
     return with_lumped_parts(out, sensors, board, limits)
 
 
+def _cells(sensor: Sensor) -> float:
+    """Cells of the electrode's window: what its 3-D solve costs, roughly."""
+    from auditor.solve.precise import WINDOW_MARGIN_MM, cell_for  # start-up speed, as above
+
+    x0, y0, x1, y1 = sensor.geometry.bounds
+    frame = 2.0 * WINDOW_MARGIN_MM
+    return float((x1 - x0 + frame) * (y1 - y0 + frame) / cell_for(sensor) ** 2)
+
+
+def _precise_job(sensor: Sensor, board: Board, config: Config, mapped: Mapped,
+                 sensors: tuple[Sensor, ...], quick: PadMetrics | None) -> PadMetrics:
+    field_input = mapped if isinstance(mapped, FieldInput) else mapped()
+    return _precise_or_quick(sensor, board, config, field_input, sensors, quick)
+
+
 def _precise_all(sensors: tuple[Sensor, ...], names: set[str],
-                 routes: Mapping[str, tuple[Route, FieldInput]],
-                 quick: Mapping[str, PadMetrics], board: Board,
-                 config: Config) -> dict[str, PadMetrics]:
-    """The electrodes routed to 3-D, solved one after the other on the shared
-    stack (the quick estimate of each, when there is one, goes in its notes)."""
-    out = {}
+                 routes: Mapping[str, tuple[Route, Mapped]],
+                 quick: Mapping[str, PadMetrics], board: Board, config: Config,
+                 work: PreciseWork, finished: Callable[[str], None]) -> dict[str, PadMetrics]:
+    """The electrodes routed to 3-D on the shared stack, run with whatever
+    else ``work`` holds (the quick estimate of each, when there is one, goes
+    in its notes)."""
     for sensor in sensors:
         if sensor.name in names:
-            route, mapped = routes[sensor.name]
-            metrics = _precise_or_quick(sensor, board, config, mapped, sensors,
-                                        quick.get(sensor.name))
-            out[sensor.name] = metrics if metrics.method_reason else replace(
-                metrics, method_reason=route.reason)
-    return out
+            work.add_electrode(sensor.name, _cells(sensor), partial(
+                _precise_job, sensor, board, config, routes[sensor.name][1], sensors,
+                quick.get(sensor.name)))
+    work.run(finished)
+    return {name: metrics if metrics.method_reason else replace(
+                metrics, method_reason=routes[name][0].reason)
+            for name, metrics in work.metrics().items()}
 
 
-__all__ = ["MODES", "Mode", "Progress", "QuickSolves", "solve_sensors", "unsolved_reasons"]
+__all__ = ["MODES", "Mode", "PreciseWork", "Progress", "QuickSolves", "solve_sensors", "unsolved_reasons"]

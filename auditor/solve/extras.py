@@ -13,6 +13,9 @@
 
 from __future__ import annotations
 
+from collections.abc import Callable
+from functools import partial
+
 import shapely
 from shapely.geometry import LineString
 
@@ -118,15 +121,29 @@ def scan_group(board: Board, config: Config, kind: str, group: str, segments: li
                        step, cell_mm, centre.x, centre.y)
 
 
+def extras_notes(finger_mm: float = DEFAULT_FINGER_MM,
+                 coupling_cell_mm: float = COUPLING_CELL_MM,
+                 scan_cell_mm: float = SCAN_CELL_MM) -> tuple[str, ...]:
+    """How the coupling table and the scans were solved, for the report."""
+    return (f"coupling: {coupling_cell_mm:g} mm cells, ground within "
+            f"{COUPLING_MARGIN_MM:g} mm of the electrodes",
+            f"scans: grounded {finger_mm:g} mm finger, {STEPS_PER_PITCH} steps per pitch, "
+            f"{scan_cell_mm:g} mm cells")
+
+
+def scan_jobs(board: Board, sensors: tuple[Sensor, ...], config: Config,
+              finger_mm: float = DEFAULT_FINGER_MM, scan_cell_mm: float = SCAN_CELL_MM
+              ) -> list[Callable[[], SegmentScan]]:
+    """One independent job per slider or wheel scan, in group order."""
+    return [partial(scan_group, board, config, kind, group, segments, finger_mm, scan_cell_mm)
+            for (kind, group), segments in _groups(sensors).items()]
+
+
 def precise_extras(board: Board, sensors: tuple[Sensor, ...], config: Config, *,
                    finger_mm: float = DEFAULT_FINGER_MM, coupling_cell_mm: float =
                    COUPLING_CELL_MM, scan_cell_mm: float = SCAN_CELL_MM) -> PreciseExtras:
-    """Coupling table and slider/wheel scans of one board."""
-    notes = [f"coupling: {coupling_cell_mm:g} mm cells, ground within "
-             f"{COUPLING_MARGIN_MM:g} mm of the electrodes",
-             f"scans: grounded {finger_mm:g} mm finger, {STEPS_PER_PITCH} steps per pitch, "
-             f"{scan_cell_mm:g} mm cells"]
-    scans = tuple(scan_group(board, config, kind, group, segments, finger_mm, scan_cell_mm)
-                  for (kind, group), segments in _groups(sensors).items())
+    """Coupling table and slider/wheel scans of one board, in this process
+    (an audit runs them as separate jobs: :mod:`auditor.solve.jobs`)."""
+    scans = tuple(job() for job in scan_jobs(board, sensors, config, finger_mm, scan_cell_mm))
     return PreciseExtras(coupling_table(board, sensors, config, coupling_cell_mm), scans,
-                         tuple(notes))
+                         extras_notes(finger_mm, coupling_cell_mm, scan_cell_mm))

@@ -210,7 +210,7 @@ from auditor.field.batch import PadBatch
 batch = PadBatch(workers=3)
 for k in range(120):  # seconds of solving: the signal lands while results() runs
     batch.add(PadSetup(pad_area_mm2=20.0 + 0.5 * k, gap_mm=0.5))
-helpers = list(batch._helpers)
+helpers = list(batch._fanout._helpers)
 threading.Timer(0.5, os.killpg, (0, signal.SIGINT)).start()
 try:
     batch.results()

@@ -36,7 +36,7 @@ def slider_run(tmp_path_factory: pytest.TempPathFactory) -> tuple[Path, int, str
     board = folder / "slider.kicad_pcb"
     board.write_text(board_text(Design(buttons=(), slider=(6.0, 6.0, 6.0)), "slider"),
                      encoding="utf-8")
-    code = main(["audit", str(board), "--precise", "--format", "json", "--quiet",
+    code = main(["audit", str(board), "--precise", "--format", "json", "--quiet", "--jobs", "1",
                  "--output", str(folder / "first.json"), "--svg", str(folder / "board.svg")])
     return folder, code, (folder / "first.json").read_text(encoding="utf-8")
 
@@ -67,13 +67,16 @@ def test_json_carries_precise_results_and_validates(slider_run: tuple[Path, int,
 
 @pytest.fixture(scope="module")
 def second_report(slider_run: tuple[Path, int, str]) -> Report:
-    """The same audit again, through the library (a second, independent solve)."""
+    """The same audit again, through the library (a second, independent
+    solve), its 3-D jobs shared with a forked helper process this time."""
     folder, _code, _ = slider_run
-    return run_audit(folder / "slider.kicad_pcb", AuditOptions(precise=True))
+    return run_audit(folder / "slider.kicad_pcb", AuditOptions(precise=True, workers=2))
 
 
 def test_json_is_byte_identical_across_runs(slider_run: tuple[Path, int, str],
                                             second_report: Report) -> None:
+    """The same bytes from one process and from two (the jobs are
+    independent and each result is kept under its own job)."""
     folder, _code, first = slider_run
     out = io.StringIO()
     render(dataclasses.replace(second_report, info=dataclasses.replace(
