@@ -73,7 +73,8 @@ def trace_too_long(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     if path.length_mm > limit_mm + EPS_MM:
         yield call.finding(
             f"sense trace is {path.length_mm:.1f} mm long, more than {limit_mm:.1f} mm",
-            sensor, (("length_mm", path.length_mm), ("max_mm", limit_mm)))
+            sensor, (("length_mm", path.length_mm), ("max_mm", limit_mm)),
+            item=path.runs[0].place if path.runs else None)
 
 
 @sensor_rule(
@@ -97,7 +98,7 @@ def trace_too_wide(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
             f"{wide_mm:.1f} mm of the sense trace is wider than {limit_mm:.2f} mm "
             f"(widest {widest.width_mm:.2f} mm on {widest.layer})", sensor,
             (("width_mm", widest.width_mm), ("max_mm", limit_mm), ("wide_length_mm", wide_mm)),
-            layer=widest.layer)
+            layer=widest.layer, item=widest.place)
 
 
 @sensor_rule(
@@ -231,7 +232,8 @@ def trace_under_electrode(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
                                  or by_name[other].kind not in TOUCH_KINDS):
             continue  # a segment's trace beside its own slider's segments: by design
         yield call.finding(f"sense trace passes under or beside electrode {other}", sensor,
-                           nets=sensor.nets + nets_of(other, call))
+                           nets=sensor.nets + nets_of(other, call),
+                           item=dict(path.under_places).get(other))
 
 
 @board_rule(
