@@ -343,3 +343,16 @@ def test_implausible_not_judged_on_mutual_pairs() -> None:
     rx = sensor(kind="mutual-rx")
     ctx = context(rx, metrics={"TOUCH1": _pad_metrics(0.1, dc=-0.05)})
     assert ids(ctx, "model-implausible") == []
+
+
+def test_no_gap_at_all_is_said_as_touching_copper() -> None:
+    # gaps are taken on the electrode's own layer, so 0 mm means copper of
+    # another net touches it there: a short, not a tight clearance
+    found = get_rule("ground-gap-tight").run(
+        context(sensor(surroundings=surroundings(min_gap_mm=0.0))))
+    assert len(found) == 1
+    assert "touches or overlaps the electrode on F.Cu" in found[0].message
+    assert "gap to" not in found[0].message
+    tight = get_rule("ground-gap-tight").run(
+        context(sensor(surroundings=surroundings(min_gap_mm=0.2))))
+    assert tight[0].message.startswith("gap to surrounding copper is 0.20 mm")
