@@ -169,6 +169,8 @@ _THRESHOLDS: dict[str, Limit] = {
                     "a controller pin of more than 50 pF is a typing error, not a pin"),
     "min_delta_c_pf": Limit("number", "pF", 0.0, 1000.0,
                             "common practice, no source: past any finger's effect"),
+    "trace_wide_max_added_pf": Limit("number", "pF", 0.0, 100_000.0,
+                                     "common practice, no source: past any controller input"),
 }
 
 _ESTIMATE: dict[str, Limit] = {
