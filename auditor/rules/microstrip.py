@@ -40,7 +40,7 @@ def microstrip_pf_per_mm(width_mm: float, height_mm: float, er: float = BOARD_ER
          + math.log(1.0 + (u / 18.1) ** 3) / 18.7)
     b = 0.564 * ((er - 0.9) / (er + 3.0)) ** 0.053
     eps_eff = (er + 1.0) / 2.0 + (er - 1.0) / 2.0 * (1.0 + 10.0 / u) ** (-a * b)
-    return eps_eff / (LIGHT_M_PER_S * z01) * 1e12 / 1000.0
+    return float(eps_eff / (LIGHT_M_PER_S * z01) * 1e12 / 1000.0)
 
 
 def plane_height_mm(sensor: Sensor, layer: str) -> float:
