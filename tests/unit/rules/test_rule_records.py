@@ -358,3 +358,24 @@ def test_no_gap_at_all_is_said_as_touching_copper() -> None:
     tight = get_rule("ground-gap-tight").run(
         context(sensor(surroundings=surroundings(min_gap_mm=0.2))))
     assert tight[0].message.startswith("gap to surrounding copper is 0.20 mm")
+
+
+def test_unsolved_electrodes_one_finding_per_reason() -> None:
+    # 64 keys of an unrouted board left unsolved for one reason: one cause,
+    # one finding, every electrode in its nets and refs
+    keys = [sensor(f"K{i}") for i in range(1, 5)]
+    unsolved = {s.name: "sense path not followed" for s in keys[:3]} | {"K4": "a loop"}
+    found = get_rule("electrode-unsolved").run(context(*keys, unsolved=unsolved))
+    assert len(found) == 2
+    many = next(f for f in found if "sense path" in f.message)
+    assert many.message.startswith("3 electrodes have no field result (sense path not followed)")
+    assert many.nets == ("K1", "K2", "K3")
+
+
+def test_paired_transmitter_has_no_result_by_design() -> None:
+    tx = replace(sensor("TX1"), kind="mutual-tx", group="KEY1")
+    rx = replace(sensor("RX1"), kind="mutual-rx", group="KEY1")
+    why = {"TX1": "transmit electrode: its pair's receive electrode carries Cm"}
+    assert ids(context(tx, rx, unsolved=why), "electrode-unsolved") == []
+    lone = replace(tx, group="")  # no receive side to carry it: still reported
+    assert ids(context(lone, unsolved=why), "electrode-unsolved") == ["electrode-unsolved"]
