@@ -12,7 +12,7 @@ from auditor.rules.groups import in_one_group
 from auditor.rules.registry import RuleCall, board_rule, sensor_rule
 from auditor.rules.repeated import listed, one_for_all
 from auditor.rules.sense_path import off_board
-from auditor.sensors.model import LayerShadow, Sensor
+from auditor.sensors.model import Sensor
 from auditor.sensors.noisy import is_shield_net
 
 
@@ -101,7 +101,7 @@ def ground_gap_wide(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
             (("gap_mm", gap_mm), ("max_mm", limit_mm)))
 
 
-@board_rule(
+@sensor_rule(
     "copper-under-electrode",
     title="Solid or too-dense copper under the electrode",
     fix="Under the electrode use a ground hatch of at most the profile's fill ratio, or no "
@@ -109,38 +109,12 @@ def ground_gap_wide(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     severity=Severity.WARNING,
     thresholds=("under_shadow_min_fraction", "under_fill_max_ratio"),
 )
-def copper_under_electrode(call: RuleCall) -> Iterator[Finding]:
+def copper_under_electrode(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     """Copper on another layer under the pad forms a parallel-plate capacitor
     with it through the board: with a 1.6 mm FR-4 board and a solid plane the
     baseline can exceed the controller's range and the relative change under a
     finger collapses. A hatch lowers that in proportion to its fill. A driven
-    shield under the pad is at the pad's own potential and is exempt. One
-    cause, one finding: electrodes over the same plane (layer, fill, nets),
-    a board-wide choice, are reported together."""
-    by_plane: dict[tuple[str, str, tuple[str, ...]], list[tuple[Sensor, LayerShadow]]] = {}
-    for sensor in call.board.touch_sensors:
-        for shadow in _dense_shadows(sensor, call):
-            by_plane.setdefault((shadow.layer, shadow.fill, shadow.nets), []).append(
-                (sensor, shadow))
-    max_fill = call.limits["under_fill_max_ratio"]
-    for (layer, fill, nets), found in sorted(by_plane.items()):
-        shadows = [shadow for _, shadow in found]
-        covers = _span([100 * s.shadowed_fraction for s in shadows])
-        fills = _span([100 * s.fill_ratio for s in shadows])
-        measured = (("shadowed_fraction", max(s.shadowed_fraction for s in shadows)),
-                    ("fill_ratio", max(s.fill_ratio for s in shadows)),
-                    ("max_fill_ratio", max_fill))
-        yield one_for_all(
-            call, [sensor for sensor, _ in found],
-            f"{fill} copper on {layer} covers {covers} % of the electrode with {fills} % "
-            f"fill (limit {100 * max_fill:.0f} %)",
-            f"electrodes sit over {fill} copper on {layer} covering {covers} % of each with "
-            f"{fills} % fill (limit {100 * max_fill:.0f} %)",
-            extra_nets=nets, measured=measured, layer=layer)
-
-
-def _dense_shadows(sensor: Sensor, call: RuleCall) -> Iterator[LayerShadow]:
-    """The copper under ``sensor`` that covers enough of it, too densely."""
+    shield under the pad is at the pad's own potential and is exempt."""
     surround = sensor.surroundings
     if surround is None:
         return
@@ -151,13 +125,14 @@ def _dense_shadows(sensor: Sensor, call: RuleCall) -> Iterator[LayerShadow]:
                 or (shadow.nets and all(is_shield_net(n) for n in shadow.nets)):
             continue  # a driven shield under the pad is there to cut Cp, not add it
         if shadow.fill_ratio > max_fill + 1e-9:
-            yield shadow
-
-
-def _span(values: list[float]) -> str:
-    """``62-100`` for a range of percentages, ``100`` for one value."""
-    low, high = f"{min(values):.0f}", f"{max(values):.0f}"
-    return low if low == high else f"{low}-{high}"
+            yield call.finding(
+                f"{shadow.fill} copper on {shadow.layer} covers "
+                f"{100 * shadow.shadowed_fraction:.0f} % of the electrode with "
+                f"{100 * shadow.fill_ratio:.0f} % fill (limit {100 * max_fill:.0f} %)",
+                sensor,
+                (("shadowed_fraction", shadow.shadowed_fraction),
+                 ("fill_ratio", shadow.fill_ratio), ("max_fill_ratio", max_fill)),
+                nets=sensor.nets + shadow.nets, layer=shadow.layer)
 
 
 @sensor_rule(

@@ -379,18 +379,3 @@ def test_paired_transmitter_has_no_result_by_design() -> None:
     assert ids(context(tx, rx, unsolved=why), "electrode-unsolved") == []
     lone = replace(tx, group="")  # no receive side to carry it: still reported
     assert ids(context(lone, unsolved=why), "electrode-unsolved") == ["electrode-unsolved"]
-
-
-def test_electrodes_over_one_plane_share_one_finding() -> None:
-    solid = surroundings(shadows=(LayerShadow("B.Cu", 1.5, 0.9, 1.0, "solid", ("GND",)),))
-    other = surroundings(shadows=(LayerShadow("B.Cu", 1.5, 0.6, 1.0, "solid", ("VDD",)),))
-    keys = [sensor(f"K{i}", surroundings=solid) for i in (1, 2, 3)] + [
-        sensor("K4", surroundings=other)]
-    found = get_rule("copper-under-electrode").run(context(*keys))
-    assert len(found) == 2  # one per plane: GND under three keys, VDD under one
-    grouped = next(f for f in found if "GND" in f.nets)
-    assert grouped.message.startswith("3 electrodes sit over solid copper on B.Cu covering "
-                                      "90 % of each with 100 % fill")
-    assert grouped.nets == ("GND", "K1", "K2", "K3")
-    single = next(f for f in found if "VDD" in f.nets)
-    assert single.sensor == "K4" and single.message.startswith("solid copper on B.Cu covers 60 %")
