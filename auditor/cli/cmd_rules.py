@@ -6,7 +6,7 @@ import argparse
 import sys
 
 from auditor.cli.wrap import write_lines
-from auditor.config.profiles import load_profile
+from auditor.config.overrides import profile_option
 from auditor.errors import UsageError
 from auditor.report.rules_md import rule_text
 from auditor.rules.registry import all_rules
@@ -25,7 +25,7 @@ def register(subparsers: argparse._SubParsersAction) -> None:  # type: ignore[ty
 
 def run(args: argparse.Namespace) -> int:
     """Print the catalogue or one rule."""
-    profile = load_profile(args.profile)
+    profile = profile_option(args.profile)
     specs = {spec.rule_id: spec for spec in all_rules()}
     if args.rule_id is None:
         width = max(len(k) for k in specs)

@@ -17,8 +17,9 @@ from auditor.cli.wrap import write_lines
 from auditor.report.sensors_doc import sensors_document, sensors_text
 from auditor.sensors.find import find_sensors
 from auditor.sensors.measure import measure
+from auditor.sensors.notes import structure_notes
 from auditor.sensors.selection import SensorSelection, selection_from_mapping
-from auditor.sensors.suggest import config_lines, structure_notes
+from auditor.sensors.suggest import config_lines
 
 CONFIG_HINT = (
     "name them in configuration, e.g. in pyproject.toml:\n"

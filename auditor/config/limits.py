@@ -169,6 +169,8 @@ _THRESHOLDS: dict[str, Limit] = {
                     "a controller pin of more than 50 pF is a typing error, not a pin"),
     "min_delta_c_pf": Limit("number", "pF", 0.0, 1000.0,
                             "common practice, no source: past any finger's effect"),
+    "trace_wide_max_added_pf": Limit("number", "pF", 0.0, 100_000.0,
+                                     "common practice, no source: past any controller input"),
 }
 
 _ESTIMATE: dict[str, Limit] = {
@@ -214,4 +216,49 @@ def threshold_problem(name: str, value: Any) -> str | None:
     return limit.problem(value)
 
 
-__all__ = ["GENERIC_THRESHOLD", "LIMITS", "Limit", "shown", "threshold_problem"]
+#: Threshold pairs that must be ordered, lower first: the limits two rules
+#: set on one quantity from either side. Out of order, every electrode
+#: between them fails one rule or the other whatever its layout.
+ORDERED_THRESHOLDS: tuple[tuple[str, str, str], ...] = (
+    ("pad_min_diameter_mm", "pad_max_diameter_mm",
+     "electrode-too-small and electrode-too-large"),
+    ("ground_gap_min_mm", "ground_gap_max_mm", "ground-gap-tight and ground-gap-wide"),
+    ("min_delta_ratio", "max_plausible_ratio", "ratio-low and model-implausible"),
+)
+
+
+@dataclass(frozen=True)
+class OrderProblem:
+    """Two thresholds out of order: ``lower`` is above ``upper``."""
+
+    lower: str
+    upper: str
+    message: str
+
+
+def order_problems(values: Mapping[str, Any]) -> tuple[OrderProblem, ...]:
+    """The pairs of :data:`ORDERED_THRESHOLDS` that ``values`` (the merged
+    thresholds of a run) put out of order; pairs with a value missing or not
+    a number are left to the per-value checks.
+
+    Examples
+    --------
+    >>> [(p.lower, p.upper) for p in order_problems(
+    ...     {"ground_gap_min_mm": 3.0, "ground_gap_max_mm": 2.0})]
+    [('ground_gap_min_mm', 'ground_gap_max_mm')]
+    """
+    found = []
+    for lower, upper, rules in ORDERED_THRESHOLDS:
+        low, high = values.get(lower), values.get(upper)
+        if not all(isinstance(v, int | float) and not isinstance(v, bool) for v in (low, high)):
+            continue
+        if low > high:  # type: ignore[operator]
+            found.append(OrderProblem(lower, upper, (
+                f"{lower} = {_num(float(low))} is more than {upper} = {_num(float(high))}: "  # type: ignore[arg-type]
+                f"{rules} would leave no value that passes both; the lower limit must not "
+                "exceed the upper")))
+    return tuple(found)
+
+
+__all__ = ["GENERIC_THRESHOLD", "LIMITS", "ORDERED_THRESHOLDS", "Limit", "OrderProblem",
+           "order_problems", "shown", "threshold_problem"]

@@ -17,7 +17,7 @@ from typing import Any, cast
 # The module, not its names: profiles read TOML through this package, and whichever
 # of the two is imported first finds the other half-initialised.
 from auditor.config import profiles
-from auditor.config.limits import GENERIC_THRESHOLD, LIMITS
+from auditor.config.limits import GENERIC_THRESHOLD, LIMITS, order_problems
 from auditor.config.model import Config, Overlay
 from auditor.config.toml_positions import read_toml
 from auditor.config.values import (
@@ -193,6 +193,28 @@ _READERS: dict[str, Callable[[Any, ConfigText], Any]] = {
     "baseline": _baseline,
     "thresholds": _thresholds,
 }
+
+
+def check_threshold_order(config: Config) -> None:
+    """Check the configuration's thresholds keep the ordered pairs ordered
+    once laid over its profile (the profile alone was checked when loaded).
+
+    Raises
+    ------
+    ConfigError
+        At the configuration file's line of the threshold out of order.
+    """
+    if not config.thresholds or not config.source:
+        return
+    merged = {**profiles.load_profile(config.profile, config.base_dir).thresholds,
+              **config.thresholds}
+    if not order_problems(merged):
+        return
+    table, text = read_toml(config.source)
+    tool = table.get("tool")
+    inside_tool = isinstance(tool, dict) and "padaudit" in tool
+    profiles.check_order(merged, config.thresholds, config.source, text,
+                         "tool.padaudit.thresholds" if inside_tool else "thresholds")
 
 
 def discover_config(board_path: str | Path, explicit: str | Path | None = None) -> Config:

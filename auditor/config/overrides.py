@@ -7,8 +7,9 @@ from dataclasses import replace
 from typing import cast
 
 from auditor.config.limits import LIMITS
+from auditor.config.load import check_threshold_order
 from auditor.config.model import Config, Overlay
-from auditor.config.profiles import resolve_profile
+from auditor.config.profiles import Profile, load_profile, resolve_profile
 from auditor.config.values import overlay_of_material
 from auditor.errors import ConfigError, UsageError
 from auditor.model.vocabulary import POWER_PRESETS, TOUCH_SIDES, PowerPreset, TouchSide
@@ -69,16 +70,36 @@ def _choice(value: str, choices: tuple[str, ...], flag: str) -> str:
     return value.lower()
 
 
+def check_profile_option(profile: str) -> None:
+    """Check a ``--profile`` value names a built-in profile or a file (a path
+    on the command line is relative to the working folder).
+
+    Raises
+    ------
+    UsageError
+        One line naming the option, with the valid choices; the message
+        already quotes the name, so it is not repeated.
+    """
+    try:
+        resolve_profile(profile)
+    except ConfigError as exc:
+        raise UsageError(f"--profile: {exc.message}") from None
+
+
+def profile_option(profile: str) -> Profile:
+    """The profile ``--profile`` names, checked as :func:`check_profile_option`
+    does (a profile file that is found but malformed keeps its file:line error)."""
+    check_profile_option(profile)
+    return load_profile(profile)
+
+
 def with_overrides(config: Config, *, profile: str | None = None, overlay: str | None = None,
                    power: str | None = None, touch_side: str | None = None,
                    fail_on: str | None = None) -> Config:
     """``config`` with every given command-line value replacing the file's."""
     changes: dict[str, object] = {}
     if profile:
-        try:  # a profile path on the command line is relative to cwd
-            resolve_profile(profile)
-        except ConfigError as exc:
-            raise UsageError(f"--profile {profile!r}: {exc.message}") from None
+        check_profile_option(profile)
         changes["profile"] = profile
         changes["base_dir"] = None  # a profile path on the command line is relative to cwd
     if overlay:
@@ -92,4 +113,6 @@ def with_overrides(config: Config, *, profile: str | None = None, overlay: str |
             changes["fail_on"] = Severity.parse(fail_on)
         except ValueError as exc:
             raise UsageError(f"--fail-on: {exc}") from None
-    return replace(config, **changes)  # type: ignore[arg-type]
+    merged = replace(config, **changes)  # type: ignore[arg-type]
+    check_threshold_order(merged)
+    return merged

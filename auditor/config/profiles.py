@@ -19,7 +19,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from auditor.config.limits import threshold_problem
+from auditor.config.limits import order_problems, threshold_problem
 from auditor.config.toml_positions import key_comments, key_line, read_toml
 from auditor.errors import ConfigError
 from auditor.rules.context import ThresholdValue
@@ -156,14 +156,29 @@ def _load(path: Path, seen: tuple[Path, ...]) -> Profile:
     if description is not None and not isinstance(description, str):
         raise ConfigError(path, "description must be a string", key_line(text, "description"))
     if _is_root(path):
-        return Profile(path.stem, description or "", own_thresholds, own_levels, origins,
-                       (path.stem,))
-    parent = _load(_parent_path(table.get("extends", "default"), path, text),
-                   (*seen, resolved))
-    return Profile(
-        path.stem, description if description is not None else parent.description,
-        {**parent.thresholds, **own_thresholds}, {**parent.levels, **own_levels},
-        {**parent.origins, **origins}, (path.stem, *parent.chain))
+        profile = Profile(path.stem, description or "", own_thresholds, own_levels, origins,
+                          (path.stem,))
+    else:
+        parent = _load(_parent_path(table.get("extends", "default"), path, text),
+                       (*seen, resolved))
+        profile = Profile(
+            path.stem, description if description is not None else parent.description,
+            {**parent.thresholds, **own_thresholds}, {**parent.levels, **own_levels},
+            {**parent.origins, **origins}, (path.stem, *parent.chain))
+    check_order(profile.thresholds, own_thresholds, path, text, "thresholds")
+    return profile
+
+
+def check_order(merged: Mapping[str, Any], own: Mapping[str, Any], path: str | Path,
+                text: str, table: str) -> None:
+    """Raise at the line of the file that put two ordered thresholds out of
+    order (:data:`auditor.config.limits.ORDERED_THRESHOLDS`): of the pair,
+    the one this file sets (the upper when it sets both)."""
+    for problem in order_problems(merged):
+        key = problem.upper if problem.upper in own else problem.lower
+        if key in own:
+            raise ConfigError(path, f"threshold {problem.message}",
+                              key_line(text, key, table))
 
 
 def _parent_path(parent_name: Any, path: Path, text: str) -> Path:

@@ -17,6 +17,7 @@ from auditor.model.results import PadMetrics, PreciseExtras
 from auditor.model.suggestions import Suggestion
 from auditor.rules.finding import Finding, Severity
 from auditor.sensors.model import Sensor
+from auditor.sensors.notes import structure_notes
 
 
 @dataclass(frozen=True)
@@ -107,6 +108,13 @@ class Report:
     board: Board | None = field(default=None, compare=False, repr=False)
     #: Precise-mode extras (coupling table, slider scans) when ``--precise`` ran.
     precise: PreciseExtras | None = None
+
+    @property
+    def notes(self) -> tuple[str, ...]:
+        """What the board's structures need said once (key switches found
+        and left to no touch rule ...): the same notes ``padaudit sensors``
+        prints, derived from the sensors so the two cannot disagree."""
+        return structure_notes(tuple(r.sensor for r in self.sensors))
 
     @property
     def failing(self) -> tuple[DecidedFinding, ...]:

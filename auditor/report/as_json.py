@@ -134,6 +134,7 @@ def _finding(d: DecidedFinding, failing: bool) -> dict[str, Any]:
         "rule_id": f.rule_id, "severity": d.severity.label,
         "default_severity": f.severity.label, "message": f.message,
         "x_mm": significant(f.x_mm), "y_mm": significant(f.y_mm), "layer": f.layer,
+        "source_line": f.source_line, "source_column": f.source_column,
         "nets": list(f.nets), "refs": list(f.refs), "sensor": f.sensor,
         "measured": {name: significant(value) for name, value in f.measured},
         "waived": d.waived, "in_baseline": d.in_baseline, "failing": failing,
@@ -186,6 +187,7 @@ def to_document(report: Report) -> dict[str, Any]:
         "stale_baseline": list(report.stale_baseline),
         "rule_errors": [{"rule_id": rid, "error": err} for rid, err in report.rule_errors],
         "cautions": list(report.cautions),
+        "notes": list(report.notes),
         **_precise(report.precise),
     }
 

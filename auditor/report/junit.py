@@ -94,10 +94,10 @@ def to_junit(report: Report) -> ET.Element:
               [d for d in mine if id(d) not in failing_ids], crashed.get(rid, ""),
               skipped=skipped.get(rid, ""))
     totals = [_finish(s) for s in (sensors, rules)]
-    if report.cautions:
+    said = [f"CAUTION: {c}" for c in report.cautions] + [f"NOTE: {n}" for n in report.notes]
+    if said:
         # Suite-level output comes after the test cases in the JUnit layout.
-        ET.SubElement(sensors, "system-out").text = "\n".join(
-            f"CAUTION: {c}" for c in report.cautions)
+        ET.SubElement(sensors, "system-out").text = "\n".join(said)
     root.set("tests", str(sum(t[0] for t in totals)))
     root.set("failures", str(sum(t[1] for t in totals)))
     root.set("errors", str(sum(t[2] for t in totals)))

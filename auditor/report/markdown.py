@@ -140,7 +140,8 @@ def render_markdown(report: Report, stream: TextIO, *, order: str = "weakest") -
         out += ["", f"<details><summary>Other findings ({len(rest)})</summary>", ""]
         out += _capped([_finding_line(d, fixes) for d in rest])
         out += ["", "</details>"]
-    for title, items in (("Skipped while reading", report.read_warnings),
+    for title, items in (("Notes", report.notes),
+                         ("Skipped while reading", report.read_warnings),
                          ("Stale waivers", report.stale_waivers),
                          ("Stale baseline entries", report.stale_baseline),
                          ("Crashed rules", tuple(f"`{r}`: {e}" for r, e in report.rule_errors))):

@@ -1,7 +1,9 @@
 """SARIF 2.1.0 output (OASIS Static Analysis Results Interchange Format).
 
 Every finding is a ``result`` located at the board file, on the line where
-the item it concerns (the electrode's pad or zone, a track) starts; SARIF has
+the item it concerns starts (the offending track for a finding about a stretch
+of trace, else the electrode's first pad or zone; the JSON report's
+``source_line``/``source_column`` are the same numbers); SARIF has
 no notion of board coordinates, so x/y (mm, Y down as in KiCad), layer, nets
 and references go into the result's ``properties``. Waived findings carry a
 ``suppression``; baselined ones ``baselineState: unchanged``.
@@ -134,7 +136,8 @@ def _notifications(report: Report) -> list[dict[str, Any]]:
     for text, level in ([(w, "warning") for w in report.read_warnings]
                         + [(w, "note") for w in report.stale_waivers]
                         + [(b, "note") for b in report.stale_baseline]
-                        + [(c, "warning") for c in report.cautions]):
+                        + [(c, "warning") for c in report.cautions]
+                        + [(n, "note") for n in report.notes]):
         notes.append({"level": level, "message": {"text": text}})
     return notes
 

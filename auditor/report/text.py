@@ -2,7 +2,8 @@
 
 Sections, top to bottom: header, cautions, electrode table, with
 ``--precise`` the coupling and slider blocks (:mod:`auditor.report.text_precise`),
-findings by severity, per-rule counts, what the reader skipped, stale waivers
+findings by severity, per-rule counts, notes on the board's structures
+(key switches ...), what the reader skipped, stale waivers
 and baseline entries, crashed rules, and the closing verdict line. Without colour the
 console is built with no colour system, so not one escape code is written.
 """
@@ -198,6 +199,7 @@ def render_text(report: Report, stream: TextIO, colour: bool, *, order: str = "w
     render_precise_sections(console, report, ordered_sensors(report.sensors, order))
     _findings(console, report)
     _rule_counts(console, report)
+    _listing(console, "Notes on the board", report.notes)
     _listing(console, "Skipped or guessed while reading the board", report.read_warnings)
     _listing(console, "Stale waivers (matched nothing)", report.stale_waivers)
     _listing(console, "Stale baseline entries (no longer found)", report.stale_baseline)

@@ -43,10 +43,21 @@ def ground_gap_tight(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
                        call.limits["ground_gap_min_mm"]))
     for gap_mm, what, limit_mm in checks:
         if gap_mm is not None and gap_mm < limit_mm - EPS_MM:
-            yield call.finding(
-                f"gap to {what} is {gap_mm:.2f} mm, less than {limit_mm:.2f} mm", sensor,
-                (("gap_mm", gap_mm), ("min_mm", limit_mm)))
+            yield call.finding(_gap_message(sensor, gap_mm, what, limit_mm), sensor,
+                               (("gap_mm", gap_mm), ("min_mm", limit_mm)))
             return
+
+
+def _gap_message(sensor: Sensor, gap_mm: float, what: str, limit_mm: float) -> str:
+    """The gap in words. Gaps are measured on the electrode's own layer only,
+    so no gap at all means other copper touches the electrode there: a
+    short, not a tight clearance (often a back-side part whose pads were
+    drawn on the front)."""
+    if gap_mm <= EPS_MM:
+        return (f"{what} touches or overlaps the electrode on {sensor.layer} (gap 0.00 mm, "
+                f"limit {limit_mm:.2f} mm): two nets shorted, or a part's pads on the "
+                "wrong layer")
+    return f"gap to {what} is {gap_mm:.2f} mm, less than {limit_mm:.2f} mm"
 
 
 def _nearest_is_sibling(sensor: Sensor, call: RuleCall) -> bool:

@@ -9,7 +9,9 @@ from __future__ import annotations
 from collections.abc import Iterator
 
 from auditor.rules.finding import Finding, Severity
-from auditor.rules.registry import RuleCall, sensor_rule
+from auditor.rules.groups import in_one_group
+from auditor.rules.registry import RuleCall, board_rule, sensor_rule
+from auditor.rules.repeated import one_for_all
 from auditor.sensors.model import Sensor
 
 
@@ -76,7 +78,7 @@ def ratio_low(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
             (("delta_ratio", metrics.delta_ratio), ("min_ratio", limit)))
 
 
-@sensor_rule(
+@board_rule(
     "electrode-unsolved",
     title="Electrode not covered by the field solve",
     fix="Run without --quick (the automatic mode solves loops, combs and other shapes far "
@@ -84,10 +86,26 @@ def ratio_low(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
         "configuration (kind, nets) so the solver can model it.",
     severity=Severity.WARNING,
 )
-def electrode_unsolved(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+def electrode_unsolved(call: RuleCall) -> Iterator[Finding]:
     """The field step ran but has no Cp or ΔC for this electrode, so the
     rules on the touch signal could not judge it; an unjudged electrode must
-    not let the board pass as if it had been checked."""
-    reason = call.board.unsolved.get(sensor.name)
-    if reason:
-        yield call.finding(f"no field result: {reason}", sensor)
+    not let the board pass as if it had been checked. One cause, one
+    finding: electrodes left unsolved for the same reason (every key of an
+    unrouted board) are reported together. A transmit electrode paired with
+    a receive electrode has no result of its own by design (the pair's
+    mutual capacitance is the receive side's), so it is not reported."""
+    by_reason: dict[str, list[Sensor]] = {}
+    for sensor in call.board.touch_sensors:
+        reason = call.board.unsolved.get(sensor.name)
+        if reason and not _paired_transmitter(sensor, call):
+            by_reason.setdefault(reason, []).append(sensor)
+    for reason, sensors in sorted(by_reason.items()):
+        yield one_for_all(call, sensors, f"no field result: {reason}",
+                          f"electrodes have no field result ({reason})")
+
+
+def _paired_transmitter(sensor: Sensor, call: RuleCall) -> bool:
+    """True for a transmit electrode with a receive electrode in its group."""
+    return sensor.kind == "mutual-tx" and any(
+        other.kind == "mutual-rx" and in_one_group(sensor, other)
+        for other in call.board.sensors)

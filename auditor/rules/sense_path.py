@@ -12,11 +12,13 @@ from auditor.sensors.model import Neighbour, SensePath, Sensor
 
 
 def at_neighbour(neighbour: Neighbour) -> dict[str, Any]:
-    """Place a finding where the other net comes closest to the sense path
-    (the electrode's own place when that is not known)."""
+    """Place a finding where the other net comes closest to the sense path,
+    and point it at the path's track there in the board file (the
+    electrode's own place when that is not known)."""
     if neighbour.x_mm is None or neighbour.y_mm is None:
         return {}
-    return {"x_mm": neighbour.x_mm, "y_mm": neighbour.y_mm, "layer": neighbour.layer}
+    return {"x_mm": neighbour.x_mm, "y_mm": neighbour.y_mm, "layer": neighbour.layer,
+            "item": neighbour.place}
 
 
 def at_series_part(path: SensePath) -> dict[str, Any]:
@@ -60,11 +62,12 @@ def sibling_net(sensor: Sensor, net: str, call: RuleCall) -> bool:
 
 
 def at_crossing(neighbour: Neighbour) -> dict[str, Any]:
-    """Place a finding where the path first crosses the other net."""
+    """Place a finding where the path first crosses the other net, on the
+    path's track that crosses it."""
     if neighbour.crossing_x_mm is None or neighbour.crossing_y_mm is None:
         return {}
     return {"x_mm": neighbour.crossing_x_mm, "y_mm": neighbour.crossing_y_mm,
-            "layer": neighbour.crossing_layer}
+            "layer": neighbour.crossing_layer, "item": neighbour.crossing_place}
 
 
 def nets_of(sensor_name: str, call: RuleCall) -> tuple[str, ...]:

@@ -8,6 +8,7 @@ from auditor.model.vocabulary import TOUCH_KINDS
 from auditor.rules.context import EPS_MM
 from auditor.rules.finding import Finding, Severity
 from auditor.rules.groups import in_one_group
+from auditor.rules.microstrip import added_pf
 from auditor.rules.registry import RuleCall, board_rule, sensor_rule
 from auditor.rules.repeated import one_for_all
 from auditor.rules.sense_path import (
@@ -73,7 +74,8 @@ def trace_too_long(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     if path.length_mm > limit_mm + EPS_MM:
         yield call.finding(
             f"sense trace is {path.length_mm:.1f} mm long, more than {limit_mm:.1f} mm",
-            sensor, (("length_mm", path.length_mm), ("max_mm", limit_mm)))
+            sensor, (("length_mm", path.length_mm), ("max_mm", limit_mm)),
+            item=path.runs[0].place if path.runs else None)
 
 
 @sensor_rule(
@@ -81,23 +83,35 @@ def trace_too_long(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     title="Sense trace wider than needed",
     fix="Route the sense trace as thin as the fabricator allows (0.1-0.2 mm).",
     severity=Severity.WARNING,
-    thresholds=("trace_max_width_mm",),
+    thresholds=("trace_max_width_mm", "trace_wide_max_added_pf"),
 )
 def trace_too_wide(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     """The trace's capacitance to ground grows with its width; a sense trace
-    carries no current, so width buys nothing."""
+    carries no current, so width buys nothing. What width costs is baseline
+    capacitance, so the stretches wider than the limit are judged by the
+    capacitance they add over the same stretches at the limit width (a
+    microstrip over a solid plane at the nearest copper layer, Hammerstad &
+    Jensen 1980, physics.md §1.8: an upper bound). A short wide stretch, a
+    neck into a pad, adds a few thousandths of a pF and passes."""
     path = sensor.path
     if path is None or not path.runs:
         return
     limit_mm = call.limits["trace_max_width_mm"]
     widest = max(path.runs, key=lambda run: (run.width_mm, run.layer))
-    if widest.width_mm > limit_mm + EPS_MM:
-        wide_mm = sum(r.length_mm for r in path.runs if r.width_mm > limit_mm + EPS_MM)
+    if widest.width_mm <= limit_mm + EPS_MM:
+        return
+    wide = tuple(r for r in path.runs if r.width_mm > limit_mm + EPS_MM)
+    added = added_pf(sensor, wide, limit_mm)
+    max_added = call.limits["trace_wide_max_added_pf"]
+    if added > max_added:
+        wide_mm = sum(r.length_mm for r in wide)
         yield call.finding(
-            f"{wide_mm:.1f} mm of the sense trace is wider than {limit_mm:.2f} mm "
-            f"(widest {widest.width_mm:.2f} mm on {widest.layer})", sensor,
-            (("width_mm", widest.width_mm), ("max_mm", limit_mm), ("wide_length_mm", wide_mm)),
-            layer=widest.layer)
+            f"{wide_mm:.1f} mm of the sense trace is wider than {limit_mm:.2f} mm (widest "
+            f"{widest.width_mm:.2f} mm on {widest.layer}), adding about {added:.2f} pF to Cp, "
+            f"more than {max_added:.2f} pF", sensor,
+            (("width_mm", widest.width_mm), ("max_mm", limit_mm), ("wide_length_mm", wide_mm),
+             ("added_pf", added), ("max_added_pf", max_added)),
+            layer=widest.layer, item=widest.place)
 
 
 @sensor_rule(
@@ -231,7 +245,8 @@ def trace_under_electrode(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
                                  or by_name[other].kind not in TOUCH_KINDS):
             continue  # a segment's trace beside its own slider's segments: by design
         yield call.finding(f"sense trace passes under or beside electrode {other}", sensor,
-                           nets=sensor.nets + nets_of(other, call))
+                           nets=sensor.nets + nets_of(other, call),
+                           item=dict(path.under_places).get(other))
 
 
 @board_rule(

@@ -8,21 +8,43 @@ mm², board frame (Y down).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import Literal
 
 from shapely.geometry.base import BaseGeometry
 
+from auditor.model.items import Pad, Track, Via
 from auditor.model.vocabulary import SensorKind
 
 
 @dataclass(frozen=True)
+class SourcePlace:
+    """Where an item starts in the board file (1-based line and column), so a
+    finding about it can point there; not part of any record's equality (a
+    re-save moves lines without changing the board)."""
+
+    source_line: int | None = None
+    source_column: int | None = None
+
+    @classmethod
+    def of(cls, item: Track | Via | Pad) -> SourcePlace | None:
+        """The place of a board item, or None when it was not read from a file."""
+        if item.source_line is None:
+            return None
+        return cls(item.source_line, item.source_column)
+
+
+@dataclass(frozen=True)
 class TraceRun:
-    """A stretch of sense trace with one cross-section."""
+    """A stretch of sense trace with one cross-section.
+
+    ``place``: where the stretch's first track starts in the board file.
+    """
 
     layer: str
     width_mm: float
     length_mm: float
+    place: SourcePlace | None = field(default=None, compare=False, repr=False)
 
 
 @dataclass(frozen=True)
@@ -44,6 +66,10 @@ class Neighbour:
     crossing_x_mm: float | None = None
     crossing_y_mm: float | None = None
     crossing_layer: str = ""
+    #: The sense path's track where the other net comes closest, and the one
+    #: it first crosses, as places in the board file.
+    place: SourcePlace | None = field(default=None, compare=False, repr=False)
+    crossing_place: SourcePlace | None = field(default=None, compare=False, repr=False)
 
 
 @dataclass(frozen=True)
@@ -64,6 +90,9 @@ class SensePath:
     series_layer: str = ""
     neighbours: tuple[Neighbour, ...] = ()
     under_electrodes: tuple[str, ...] = ()  # other sensors it passes under/beside
+    #: (electrode, place of the first track passing under or beside it).
+    under_places: tuple[tuple[str, SourcePlace], ...] = field(default=(), compare=False,
+                                                              repr=False)
     complete: bool = True  # False when the path could not be followed to a pin
     nets: tuple[str, ...] = ()  # nets along the path: electrode's, then after the series part
     #: The path ends at a connector (``controller_ref``) to a controller on another board.

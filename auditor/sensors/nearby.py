@@ -19,7 +19,7 @@ import math
 from collections.abc import Collection, Sequence
 
 from shapely import STRtree
-from shapely.geometry import LineString, MultiLineString
+from shapely.geometry import LineString, MultiLineString, Point
 from shapely.geometry.base import BaseGeometry
 from shapely.ops import nearest_points
 
@@ -27,7 +27,7 @@ from auditor.model.board import Board
 from auditor.model.geometry import Arc
 from auditor.model.items import Track
 from auditor.sensors import robust
-from auditor.sensors.model import Neighbour, Sensor
+from auditor.sensors.model import Neighbour, Sensor, SourcePlace
 from auditor.sensors.noisy import is_noisy_net
 from auditor.sensors.selection import SensorSelection
 from auditor.sensors.spatial import items_in_box, pieces_in
@@ -61,7 +61,7 @@ def neighbours_of_path(board: Board, tracks: Sequence[Track], skip_nets: Collect
     field = pin_field(board, controller_ref)
     parallel: dict[str, float] = {}
     closest: dict[str, float] = {}
-    where: dict[str, tuple[float, float, str]] = {}
+    where: dict[str, Spot] = {}
     groups: dict[tuple[str, float], list[Track]] = {}
     for tr in tracks:
         groups.setdefault((tr.layer, round(tr.width_mm, 6)), []).append(tr)
@@ -70,7 +70,7 @@ def neighbours_of_path(board: Board, tracks: Sequence[Track], skip_nets: Collect
                                                  selection, field):
             parallel[net] = parallel.get(net, 0.0) + length
             if dist < closest.get(net, float("inf")):
-                closest[net], where[net] = dist, (x, y, layer)
+                closest[net], where[net] = dist, (x, y, layer, _track_at(group, x, y))
     crossed = _crossings(board, tracks, skip_nets)
     nets = sorted(set(parallel) | set(crossed))
     return tuple(_neighbour(board, net, parallel.get(net, 0.0), closest.get(net),
@@ -78,17 +78,32 @@ def neighbours_of_path(board: Board, tracks: Sequence[Track], skip_nets: Collect
                  for net in nets)
 
 
+#: A place on the sense path: x, y (mm), layer, and the path's track there.
+Spot = tuple[float, float, str, Track]
+#: Crossings of one net: how many, and where the first one is.
+Crossed = tuple[int, float, float, str, Track]
+
+
 def _neighbour(board: Board, net: str, parallel_mm: float, closest_mm: float | None,
-               spot: tuple[float, float, str] | None,
-               crossed: tuple[int, float, float, str] | None,
+               spot: Spot | None, crossed: Crossed | None,
                selection: SensorSelection) -> Neighbour:
     """One neighbour record (``sense`` is set later by the caller)."""
-    x, y, layer = spot if spot is not None else (None, None, "")
-    count, cx, cy, clayer = crossed if crossed is not None else (0, None, None, "")
+    x, y, layer, track = spot if spot is not None else (None, None, "", None)
+    count, cx, cy, clayer, crossing = crossed if crossed is not None else (
+        0, None, None, "", None)
     return Neighbour(
         net, parallel_mm, closest_mm, count, is_noisy_net(board, net, selection), False,
         None if x is None else round(x, 4), None if y is None else round(y, 4), layer,
-        None if cx is None else round(cx, 4), None if cy is None else round(cy, 4), clayer)
+        None if cx is None else round(cx, 4), None if cy is None else round(cy, 4), clayer,
+        place=SourcePlace.of(track) if track is not None else None,
+        crossing_place=SourcePlace.of(crossing) if crossing is not None else None)
+
+
+def _track_at(tracks: Sequence[Track], x: float, y: float) -> Track:
+    """The track of ``tracks`` nearest to the point (x, y) on the path: the
+    one a finding placed there is about (the first of equals, in path order)."""
+    spot = Point(x, y)
+    return min(tracks, key=lambda t: float(t.geometry.distance(spot)))
 
 
 def pin_field(board: Board, ref: str) -> BaseGeometry | None:
@@ -147,10 +162,10 @@ def _closest_point(whole: BaseGeometry, clipped: BaseGeometry, copper: BaseGeome
 
 
 def _crossings(board: Board, tracks: Sequence[Track], skip: Collection[str]
-               ) -> dict[str, tuple[int, float, float, str]]:
+               ) -> dict[str, Crossed]:
     """Per net: how often the path crosses its tracks on the adjacent layers,
-    and where it does first (x, y and the other net's layer)."""
-    found: dict[str, tuple[int, float, float, str]] = {}
+    and where it does first (x, y, the other net's layer, the path's track)."""
+    found: dict[str, Crossed] = {}
     for tr in tracks:
         line = centre_line(tr)
         for layer in adjacent_layers(board, tr.layer):
@@ -159,8 +174,8 @@ def _crossings(board: Board, tracks: Sequence[Track], skip: Collection[str]
                 if not item.geometry.intersects(line):
                     continue
                 at = line.intersection(item.geometry).centroid
-                count, x, y, where = found.get(item.net, (0, at.x, at.y, layer))
-                found[item.net] = (count + 1, x, y, where)
+                count, x, y, where, first = found.get(item.net, (0, at.x, at.y, layer, tr))
+                found[item.net] = (count + 1, x, y, where, first)
     return found
 
 
@@ -173,18 +188,20 @@ def adjacent_layers(board: Board, layer: str) -> tuple[str, ...]:
     return tuple(names[j] for j in (i - 1, i + 1) if 0 <= j < len(names))
 
 
-def sensors_beside_path(board: Board, tracks: Sequence[Track], sensor: Sensor,
-                        others: Sequence[Sensor], distance_mm: float) -> tuple[str, ...]:
-    """Names of other electrodes the path passes under, over or beside."""
+def tracks_beside_electrodes(board: Board, tracks: Sequence[Track], sensor: Sensor,
+                             others: Sequence[Sensor], distance_mm: float
+                             ) -> tuple[tuple[str, Track], ...]:
+    """Other electrodes the path passes under, over or beside, by name, each
+    with the first track of the path that does."""
     candidates = [o for o in others if o.name != sensor.name and not set(o.nets) & set(sensor.nets)]
     if not candidates or not tracks:
         return ()
     tree = STRtree([o.geometry for o in candidates])
-    hits: set[str] = set()
+    hits: dict[str, Track] = {}
     for tr in tracks:
         for i in tree.query(tr.geometry, predicate="dwithin", distance=distance_mm):
             other = candidates[int(i)]
             if other.layer != tr.layer and not tr.geometry.intersects(other.geometry):
                 continue
-            hits.add(other.name)
-    return tuple(sorted(hits))
+            hits.setdefault(other.name, tr)
+    return tuple(sorted(hits.items()))

@@ -12,8 +12,8 @@ from collections.abc import Sequence
 
 from auditor.model.board import Board
 from auditor.model.items import Pad, Track
-from auditor.sensors.model import SensePath, Sensor, TraceRun
-from auditor.sensors.nearby import neighbours_of_path, sensors_beside_path
+from auditor.sensors.model import SensePath, Sensor, SourcePlace, TraceRun
+from auditor.sensors.nearby import neighbours_of_path, tracks_beside_electrodes
 from auditor.sensors.netgraph import NetGraph, Walk, rooted_at_pad
 from auditor.sensors.reach import Reach, is_controller, reach_of
 from auditor.sensors.selection import SensorSelection
@@ -53,6 +53,7 @@ def _path(board: Board, sensor: Sensor, others: Sequence[Sensor], sel: SensorSel
           series_mm: float | None, complete: bool = True) -> SensePath:
     own = set(sensor.nets) | {p.net for p in (reach.series_far_pad,) if p is not None}
     skip = own | {ground, ""}
+    beside = tracks_beside_electrodes(board, tracks, sensor, others, sel.neighbour_distance_mm)
     return SensePath(
         length_mm=sum(t.length_mm for t in tracks),
         runs=runs_of(tracks),
@@ -67,8 +68,9 @@ def _path(board: Board, sensor: Sensor, others: Sequence[Sensor], sel: SensorSel
         series_layer=(reach.series_pad.copper_layers[0] if reach.series_pad is not None
                       and reach.series_pad.copper_layers else ""),
         neighbours=neighbours_of_path(board, tracks, skip, sel, pin[0]),
-        under_electrodes=sensors_beside_path(board, tracks, sensor, others,
-                                             sel.neighbour_distance_mm),
+        under_electrodes=tuple(name for name, _ in beside),
+        under_places=tuple((name, place) for name, tr in beside
+                           if (place := SourcePlace.of(tr)) is not None),
         complete=complete,
         off_board=reach.off_board,
         nets=tuple(dict.fromkeys(t.net for t in tracks)) or sensor.nets,
@@ -100,7 +102,8 @@ def _any_controller_pad(board: Board, net: str, skip: Sequence[str],
 
 
 def runs_of(tracks: Sequence[Track]) -> tuple[TraceRun, ...]:
-    """Consecutive tracks with one layer and width merged into runs.
+    """Consecutive tracks with one layer and width merged into runs, each
+    placed at its first track.
 
     >>> from shapely.geometry import Point as P
     >>> from auditor.model.items import Point, Track
@@ -112,7 +115,8 @@ def runs_of(tracks: Sequence[Track]) -> tuple[TraceRun, ...]:
     for tr in tracks:
         if runs and runs[-1].layer == tr.layer and abs(runs[-1].width_mm - tr.width_mm) < 1e-6:
             last = runs[-1]
-            runs[-1] = TraceRun(last.layer, last.width_mm, last.length_mm + tr.length_mm)
+            runs[-1] = TraceRun(last.layer, last.width_mm, last.length_mm + tr.length_mm,
+                                last.place)
         else:
-            runs.append(TraceRun(tr.layer, tr.width_mm, tr.length_mm))
+            runs.append(TraceRun(tr.layer, tr.width_mm, tr.length_mm, SourcePlace.of(tr)))
     return tuple(runs)

@@ -11,7 +11,7 @@ from collections.abc import Sequence
 
 from auditor.sensors.cues import is_auto_name
 from auditor.sensors.find import Rejected
-from auditor.sensors.model import Sensor, name_order
+from auditor.sensors.model import name_order
 
 
 def config_lines(rejects: Sequence[Rejected]) -> tuple[str, ...]:
@@ -37,13 +37,3 @@ def config_lines(rejects: Sequence[Rejected]) -> tuple[str, ...]:
         lines.append("nets = [" + ", ".join(f'"{net}"' for net in nets) + "]")
     return tuple(lines)
 
-
-def structure_notes(sensors: Sequence[Sensor]) -> tuple[str, ...]:
-    """One note per structure that needs saying once, not per electrode."""
-    keys = [s for s in sensors if s.kind == "keyswitch"]
-    if not keys:
-        return ()
-    switches = len({s.group for s in keys})
-    return (f"{len(keys)} pads of {switches} electro-capacitive key switch(es) found: "
-            "capacitive sensors under mechanical keys, not finger-touch electrodes, so no "
-            "touch rule applies to them",)

@@ -45,8 +45,9 @@ def surroundings_of(board: Board, sensor: Sensor, others: Sequence[Sensor],
     # a driven shield carries the sense waveform: no field across that gap
     own = set(sensor.nets) | {net for net in board.nets if is_shield_net(net)}
     search = selection.gap_search_mm
-    around = pieces_in(board, sensor.layer, sensor.geometry.buffer(search),
-                       lambda it: it.net not in own)
+    around = [p for p in pieces_in(board, sensor.layer, sensor.geometry.buffer(search),
+                                   lambda it: it.net not in own)
+              if not _part_of(sensor, p.item.net, p.geometry)]
     min_gap, typical_gap = gaps_between(sensor, [p.geometry for p in around], search)
     ground_gaps = gaps_between(sensor, [p.geometry for p in around if p.item.net == ground],
                                search)
@@ -67,6 +68,13 @@ def surroundings_of(board: Board, sensor: Sensor, others: Sequence[Sensor],
         min_ground_gap_mm=ground_gaps[0],
         typical_ground_gap_mm=ground_gaps[1],
     )
+
+
+def _part_of(sensor: Sensor, net: str, piece: BaseGeometry) -> bool:
+    """True for net-less copper merged into the electrode (artwork drawn as
+    footprint graphics): it is the electrode, not copper around it. Copper of
+    a net inside the electrode stays: that is a short, and it is reported."""
+    return net == "" and sensor.geometry.buffer(1e-6).contains(piece.representative_point())
 
 
 def copper_near(board: Board, layer: str, region: BaseGeometry,

@@ -55,5 +55,18 @@ def test_unknown_profile_flag_names_the_option(capsys: pytest.CaptureFixture[str
     code = main(["audit", str(BOARD), "--no-solve", "--profile", "nonesuch"])
     _, err = capsys.readouterr()
     assert code == 2
-    assert err.startswith("padaudit: --profile 'nonesuch': unknown profile") and \
-        err.count("\n") == 1
+    assert err.startswith("padaudit: --profile: unknown profile 'nonesuch'; choose one of: "
+                          "default, ") and err.count("\n") == 1 and err.count("nonesuch") == 1
+
+
+@pytest.mark.parametrize("command", [["rules"], ["rules", "trace-too-wide"],
+                                     ["kicad-rules", str(BOARD)]])
+def test_unknown_profile_is_one_line_everywhere(capsys: pytest.CaptureFixture[str],
+                                                command: list[str]) -> None:
+    """Every command taking --profile refuses an unknown one alike: exit 2,
+    one line naming the option and the choices, the name said once."""
+    code = main([*command, "--profile", "nonesuch"])
+    out, err = capsys.readouterr()
+    assert code == 2 and out == ""
+    assert err == ("padaudit: --profile: unknown profile 'nonesuch'; choose one of: default, "
+                   "mutual, proximity, strict, or a path to a .toml profile\n")

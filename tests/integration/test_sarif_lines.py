@@ -9,6 +9,10 @@ from pathlib import Path
 from auditor.cli.main import main
 from auditor.demo import demo_board_path
 
+#: Rules whose findings are about one stretch of the sense trace
+#: (tests/integration/test_trace_finding_lines.py checks which track).
+STRETCH_RULES = ("trace-too-wide", "trace-parallel-run", "trace-near-noisy-net",
+                 "trace-crossings", "trace-under-electrode", "trace-too-long")
 SARIF_SCHEMA = Path(__file__).resolve().parents[1] / "data" / "sarif-schema-2.1.0.json"
 
 
@@ -28,9 +32,14 @@ def test_demo_results_sit_on_their_items_lines(tmp_path: Path) -> None:
         if not sensor:
             continue
         line, column = region["startLine"], region["startColumn"]
-        # The line opens the electrode's first item (a pad, or a zone).
-        assert board_lines[line - 1][column - 1:].startswith(("(pad", "(zone")), result
+        opened = board_lines[line - 1][column - 1:]
         assert result["properties"]["layer"] and result["properties"]["x_mm"] is not None
+        if result["ruleId"] in STRETCH_RULES:
+            # a finding about a stretch of trace opens that track
+            assert opened.startswith(("(segment", "(arc")), result
+            continue
+        # The line opens the electrode's first item (a pad, or a zone).
+        assert opened.startswith(("(pad", "(zone")), result
         lines_by_sensor[sensor].add(line)
     assert len(lines_by_sensor) >= 5
     # Findings on distinct electrodes land on distinct lines, one per electrode.
