@@ -49,15 +49,28 @@ class MutualSolve:
     matrix_with_finger: CapacitanceMatrix | None
 
 
-def solve_mutual(setup: MutualSetup) -> MutualSolve:
-    """Mutual capacitance between the pair and its drop under the finger."""
-    stack = setup.stack
-    check_setup(stack)
+def pair_radii(setup: MutualSetup) -> tuple[float, float, float]:
+    """Inner disk radius and the ring's inner and outer radii (mm), after
+    checking the stack and that diameter, gap and width are positive.
+
+    Raises
+    ------
+    UsageError
+        For a setup no pair can have.
+    """
+    check_setup(setup.stack)
     inner = 0.5 * setup.inner_diameter_mm
     ring_in = inner + setup.electrode_gap_mm
     ring_out = ring_in + setup.outer_width_mm
     if min(inner, setup.electrode_gap_mm, setup.outer_width_mm) <= 0:
         raise UsageError("mutual electrodes need positive diameter, gap and width")
+    return inner, ring_in, ring_out
+
+
+def solve_mutual(setup: MutualSetup) -> MutualSolve:
+    """Mutual capacitance between the pair and its drop under the finger."""
+    stack = setup.stack
+    inner, ring_in, ring_out = pair_radii(setup)
     inner_name, outer_name = ("tx", "rx") if setup.inner_role == "tx" else ("rx", "tx")
     ground_setup = replace(stack, pad_area_mm2=math.pi * ring_out ** 2)
     layers, surface = dielectrics(stack)

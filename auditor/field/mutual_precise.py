@@ -26,15 +26,13 @@ from shapely.geometry import Point
 
 from auditor.errors import UsageError
 from auditor.field.matrix import CapacitanceMatrix
-from auditor.field.mutual import MutualSetup, MutualSolve
-from auditor.field.pad_model import PadSetup, check_setup, ground_outer_mm, reduced_network
+from auditor.field.mutual import MutualSetup, MutualSolve, pair_radii
+from auditor.field.pad_model import PadSetup, reduced_network
 from auditor.field.precise import Conductor, LayeredMedium, richardson, solve_precise
 from auditor.field.round_pad import (
     FINGER,
-    GROUND,
     _estimate_medium,
-    _plane_level,
-    _plane_polygon,
+    ground_polygons,
     solve_pair,
 )
 
@@ -108,26 +106,13 @@ def estimate_mutual_precise(setup: MutualSetup, cell_mm: float = 0.25) -> Mutual
     against the other.
     """
     stack = setup.stack
-    check_setup(stack)
-    inner = 0.5 * setup.inner_diameter_mm
-    ring_in = inner + setup.electrode_gap_mm
-    ring_out = ring_in + setup.outer_width_mm
-    if min(inner, setup.electrode_gap_mm, setup.outer_width_mm) <= 0:
-        raise UsageError("mutual electrodes need positive diameter, gap and width")
+    inner, ring_in, ring_out = pair_radii(setup)
     medium, pad_level, surface_level = _estimate_medium(stack)
     inner_name, outer_name = (TX, RX) if setup.inner_role == "tx" else (RX, TX)
     conductors = [Conductor(inner_name, _disk(inner), pad_level),
                   Conductor(outer_name, _disk(ring_out).difference(_disk(ring_in)), pad_level)]
     ground_setup = replace(stack, pad_area_mm2=math.pi * ring_out ** 2)
-    outer = ground_outer_mm(ground_setup)
-    if stack.gap_mm is not None:
-        ring = _disk(outer).difference(_disk(ring_out + stack.gap_mm))
-        conductors.append(Conductor(f"{GROUND}@ring", ring, pad_level))
-    if stack.plane_depth_mm is not None:
-        plane = _plane_polygon(outer, stack.plane_fill, stack.plane_hatch_pitch_mm)
-        if not plane.is_empty:
-            conductors.append(Conductor(f"{GROUND}@plane", plane,
-                                        _plane_level(ground_setup, pad_level)))
+    conductors += ground_polygons(ground_setup, ring_out, pad_level)
     finger = None
     if stack.finger_diameter_mm is not None:
         finger = Conductor(FINGER, _disk(0.5 * stack.finger_diameter_mm), surface_level)

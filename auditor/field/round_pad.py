@@ -107,16 +107,7 @@ def estimate_precise(setup: PadSetup, cell_mm: float = 0.25) -> PadSolve:
     radius = setup.pad_radius_mm
     disk = Point(0, 0).buffer(radius, quad_segs=64)
     conductors = [Conductor(PAD, disk, pad_level)]
-    outer = ground_outer_mm(setup)
-    if setup.gap_mm is not None:
-        ring = Point(0, 0).buffer(outer, quad_segs=64).difference(
-            Point(0, 0).buffer(radius + setup.gap_mm, quad_segs=64))
-        conductors.append(Conductor(f"{GROUND}@ring", ring, pad_level))
-    if setup.plane_depth_mm is not None:
-        plane = _plane_polygon(outer, setup.plane_fill, setup.plane_hatch_pitch_mm)
-        if not plane.is_empty:
-            conductors.append(Conductor(f"{GROUND}@plane", plane,
-                                        _plane_level(setup, pad_level)))
+    conductors += ground_polygons(setup, radius, pad_level)
     finger = None
     if setup.finger_diameter_mm is not None:
         finger = Conductor(FINGER, Point(0, 0).buffer(0.5 * setup.finger_diameter_mm,
@@ -132,6 +123,24 @@ def estimate_precise(setup: PadSetup, cell_mm: float = 0.25) -> PadSolve:
     return PadSolve(cp_pad, cp_trace, total, cp_touched + cp_trace, delta, delta / total,
                     baseline, touched, tuple(notes))
 
+
+
+def ground_polygons(setup: PadSetup, electrode_radius_mm: float,
+                    pad_level: int) -> list[Conductor]:
+    """The quick model's coplanar ground ring (from ``electrode_radius_mm``
+    plus the gap out to the model's reach) and the plane below, as 256-gons
+    (the same geometry for a round pad and a disk-and-ring pair)."""
+    out: list[Conductor] = []
+    outer = ground_outer_mm(setup)
+    if setup.gap_mm is not None:
+        ring = Point(0, 0).buffer(outer, quad_segs=64).difference(
+            Point(0, 0).buffer(electrode_radius_mm + setup.gap_mm, quad_segs=64))
+        out.append(Conductor(f"{GROUND}@ring", ring, pad_level))
+    if setup.plane_depth_mm is not None:
+        plane = _plane_polygon(outer, setup.plane_fill, setup.plane_hatch_pitch_mm)
+        if not plane.is_empty:
+            out.append(Conductor(f"{GROUND}@plane", plane, _plane_level(setup, pad_level)))
+    return out
 
 def _estimate_medium(setup: PadSetup) -> tuple[LayeredMedium, int, int]:
     """Medium of the estimate's stack, the pad's level and the finger's level."""
