@@ -12,6 +12,10 @@ from dataclasses import dataclass
 
 from auditor.model.vocabulary import PART_CONNECTIONS, PartConnection
 
+#: Opening words of the 3-D solve's note on an electrode solved with a
+#: driven shield at its own potential (the shield takes charge off the pad,
+#: so the pad's Cp may fall below the isolated-disk floor).
+DRIVEN_SHIELD_NOTE = "driven shield "
 #: How a part on the sense net enters Cp (``LumpedPart.connection``):
 #: ``to-ground`` and ``to-net`` add their capacitance in parallel (another net
 #: is taken as AC ground: a supply or a driven pin is a low impedance at the

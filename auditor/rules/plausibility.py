@@ -11,6 +11,9 @@ Three bounds, each independent of the model that answered:
   Mathematical Physics*, 1951; from memory), and a board's dielectric or
   any nearby conductor only raises it, so a pad on a real board has more.
   :data:`FLOOR_ALLOWANCE` leaves room for the 3-D solve's discretisation.
+  The floor assumes every other conductor is at a lower potential; a
+  driven shield at the pad's own potential takes charge off the pad, so an
+  electrode solved with one (its note says so) is not held to it.
 * A negative ΔC: a finger (a conductor, grounded or not) never lowers a
   self-capacitance pad's capacitance to the device ground.
 """
@@ -20,6 +23,7 @@ from __future__ import annotations
 import math
 from collections.abc import Iterator
 
+from auditor.model.results import DRIVEN_SHIELD_NOTE
 from auditor.model.vocabulary import SELF_KINDS
 from auditor.rules.finding import Finding, Severity
 from auditor.rules.registry import RuleCall, sensor_rule
@@ -50,7 +54,9 @@ def _problems(sensor: Sensor, call: RuleCall) -> Iterator[tuple[str, tuple[str, 
         yield (f"ΔC/Cp {100 * metrics.delta_ratio:.1f} % is above {100 * most:.0f} %",
                ("delta_ratio", metrics.delta_ratio))
     floor = isolated_disk_pf(sensor.area_mm2)
-    if metrics.cp_pad_pf < (1.0 - FLOOR_ALLOWANCE) * floor:
+    shielded = any(note.startswith(DRIVEN_SHIELD_NOTE)
+                   for note in getattr(metrics, "notes", ()))
+    if not shielded and metrics.cp_pad_pf < (1.0 - FLOOR_ALLOWANCE) * floor:
         yield (f"Cp of the pad {metrics.cp_pad_pf:.3f} pF is below the isolated disk of the "
                f"same area ({floor:.3f} pF)", ("cp_pad_pf", metrics.cp_pad_pf))
     if metrics.delta_c_pf < 0:

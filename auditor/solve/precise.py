@@ -42,7 +42,7 @@ from auditor.field.round_pad import (
 )
 from auditor.field.traces import traces_pf
 from auditor.model.board import Board
-from auditor.model.results import PadMetrics
+from auditor.model.results import DRIVEN_SHIELD_NOTE, PadMetrics
 from auditor.sensors.model import Sensor
 from auditor.sensors.spatial import pieces_in
 from auditor.solve.precise_copper import (
@@ -253,7 +253,7 @@ def pad_conductors(sensor: Sensor, board: Board, stack: PreciseStack,
         notes.append(f"net-less copper touching the electrode ({added_mm2:.1f} mm²) solved "
                      "as part of it")
     if shield:
-        notes.append(f"driven shield {'/'.join(sorted(shields))} held at the electrode's "
+        notes.append(f"{DRIVEN_SHIELD_NOTE}{'/'.join(sorted(shields))} held at the electrode's "
                      "potential; Cp counts the electrode's charge only")
     grounds = ground_conductors(board, stack, ground_net, window, held, clear)
     return [pad, *shield, *grounds], tuple(notes)

@@ -16,7 +16,7 @@ from precise_records import precise_cases
 from rule_records import context, get_rule, path, sensor, surroundings
 
 from auditor.model.items import ReadWarning
-from auditor.model.results import PadMetrics
+from auditor.model.results import DRIVEN_SHIELD_NOTE, PadMetrics
 from auditor.rules.context import RuleContext
 from auditor.rules.registry import all_rules, run_rules
 from auditor.sensors.model import LayerShadow, Neighbour, Sensor, TraceRun
@@ -331,6 +331,19 @@ def test_pad_below_isolated_disk_is_implausible() -> None:
     for cp_pad, expect in ((0.34, ["model-implausible"]), (0.35, []), (2.0, [])):
         ctx = context(sensor(), metrics={"TOUCH1": _pad_metrics(cp_pad)})
         assert ids(ctx, "model-implausible") == expect, cp_pad
+
+
+def test_driven_shield_lifts_the_isolated_disk_floor() -> None:
+    """With a driven shield at the pad's potential the pad's own charge (its
+    Cp) can be far below 8 eps0 a: two coaxial disks at one potential share
+    the charge (Love 1949, C11 + C12 per disk below 8 eps0 a; physics.md
+    1.4). The 3-D solve's shield note lifts the floor; without it, flagged."""
+    low = _pad_metrics(0.05)
+    shielded = replace(low, notes=(DRIVEN_SHIELD_NOTE + "SHIELD held at the electrode's "
+                                   "potential",))
+    assert ids(context(sensor(), metrics={"TOUCH1": low}), "model-implausible") == [
+        "model-implausible"]
+    assert ids(context(sensor(), metrics={"TOUCH1": shielded}), "model-implausible") == []
 
 
 def test_negative_change_is_implausible_and_measured() -> None:
