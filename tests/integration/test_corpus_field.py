@@ -17,12 +17,10 @@ import shutil
 from pathlib import Path
 
 import pytest
+from measured_boards import measured_file
 
-from auditor.audit import AuditOptions, _measured, measuring_selection, resolve_setup
 from auditor.field.api import solve_pad
 from auditor.model.vocabulary import SELF_KINDS
-from auditor.read import read_board
-from auditor.sensors import find_sensors
 from auditor.solve.precise import metrics_from_precise
 from auditor.solve.route import route_for
 from auditor.solve.setup import pad_setup_for
@@ -50,11 +48,7 @@ def test_disk_answers_agree_with_3d(name: str, tmp_path: Path) -> None:
             shutil.copy(CORPUS / f"{name}{ext}", tmp_path)
     (tmp_path / "padaudit.toml").write_text('profile = "default"\n', encoding="utf-8")
     path = tmp_path / f"{name}.kicad_pcb"
-    options = AuditOptions(solve=False)
-    setup = resolve_setup(path, options)
-    board = read_board(path)
-    found, _ = find_sensors(board, measuring_selection(setup))
-    sensors, _ = _measured(board, found, measuring_selection(setup), setup, options)
+    board, sensors, setup = measured_file(path)
     nets = frozenset(n for s in sensors for n in s.nets)
     for sensor in sensors:
         if sensor.kind not in SELF_KINDS or sensor.area_mm2 <= 0:

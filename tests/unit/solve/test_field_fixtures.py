@@ -15,14 +15,13 @@ from dataclasses import replace
 from pathlib import Path
 
 import pytest
+from measured_boards import measured_file
 from shapely.geometry import box
 
-from auditor.audit import AuditOptions, _measured, measuring_selection, resolve_setup, run_audit
+from auditor.audit import AuditOptions, run_audit
 from auditor.field.api import PadSetup, PadSolve, solve_pad
 from auditor.model.board import Board
 from auditor.model.results import PadMetrics
-from auditor.read import read_board
-from auditor.sensors import find_sensors
 from auditor.sensors.model import Sensor
 from auditor.solve import shadows
 from auditor.solve.precise import finger_disk, metrics_from_precise
@@ -37,12 +36,7 @@ pytestmark = pytest.mark.slow
 
 
 def _board(name: str) -> tuple[Board, tuple[Sensor, ...], dict[str, FieldInput], object]:
-    path = FIELD / f"{name}.kicad_pcb"
-    options = AuditOptions(solve=False)
-    setup = resolve_setup(path, options)
-    board = read_board(path)
-    found, _ = find_sensors(board, measuring_selection(setup))
-    sensors, _ = _measured(board, found, measuring_selection(setup), setup, options)
+    board, sensors, setup = measured_file(FIELD / f"{name}.kicad_pcb")
     mapped = {s.name: pad_setup_for(s, board, setup.config, setup.thresholds) for s in sensors}
     return board, sensors, mapped, setup
 
