@@ -32,6 +32,8 @@ from collections.abc import Callable
 from multiprocessing.process import BaseProcess
 from typing import Any, Generic, TypeVar
 
+from auditor.field.heap import release_freed_memory
+
 Item = TypeVar("Item")
 Result = TypeVar("Result")
 
@@ -83,6 +85,16 @@ def process_count(requested: int | None) -> int:
     return max(1, requested)
 
 
+def _released(run: Callable[[Any], Any], item: Any) -> Any:
+    """``run(item)``, then the memory it freed handed back to the system
+    (:mod:`auditor.field.heap`): with helpers, what each process keeps
+    resident adds up."""
+    try:
+        return run(item)
+    finally:
+        release_freed_memory()
+
+
 def _helper(run: Callable[[Any], Any], inherited: list[Any], tasks: Any, results: Any) -> None:
     """A helper's loop: run queued items until the stop mark (None).
 
@@ -100,7 +112,7 @@ def _helper(run: Callable[[Any], Any], inherited: list[Any], tasks: Any, results
         try:
             # Pickled here, not in the queue's feeder thread, so a result
             # that cannot be sent is a failure this loop reports.
-            results.put((index, pickle.dumps(run(item), pickle.HIGHEST_PROTOCOL)))
+            results.put((index, pickle.dumps(_released(run, item), pickle.HIGHEST_PROTOCOL)))
         except Exception:  # noqa: BLE001 - run again by the caller, which raises it
             results.put((index, None))
 
@@ -186,7 +198,7 @@ class Fanout(Generic[Item, Result]):
                 raise
         for index, item in enumerate(self._items):
             if index not in self._done:
-                self._done[index] = self._run(item)
+                self._done[index] = _released(self._run, item)
                 if on_done is not None:
                     on_done(index)
         return [self._done[index] for index in range(len(self._items))]
@@ -212,7 +224,7 @@ class Fanout(Generic[Item, Result]):
                 break
             claimed.add(index)
             try:
-                self._done[index] = self._run(self._items[index])  # the caller's object
+                self._done[index] = _released(self._run, self._items[index])  # caller's object
             except Exception:  # noqa: BLE001 - run again, in order, by results()
                 continue
             if on_done is not None:

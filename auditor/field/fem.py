@@ -346,8 +346,12 @@ def _potentials(boundary: FloatArray, free: IndexArray, order: IndexArray,
 def _trailing_schur(lu: Any, count: int) -> FloatArray:
     """The Schur complement of the leading block in the factorised matrix:
     the product of the factors' trailing ``count`` x ``count`` blocks."""
-    lower, upper = lu.L.tocsc(), lu.U.tocsc()
-    out: FloatArray = (lower[-count:, -count:] @ upper[-count:, -count:]).toarray()
+    # Each factor property is a fresh copy of the whole factor: take one
+    # block, let that copy go, then the other, so the two never coexist
+    # (they set the peak memory of a quick solve on a large pad).
+    lower = lu.L[-count:, -count:].toarray()
+    upper = lu.U[-count:, -count:].toarray()
+    out: FloatArray = lower @ upper
     return out
 
 

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass
-from functools import cached_property, lru_cache
+from functools import cached_property
 
 import numpy as np
 import scipy.fft
@@ -27,7 +27,7 @@ ComplexArray = NDArray[np.complex128]
 BoolArray = NDArray[np.bool_]
 
 _FFT_WORKERS = 2
-_APPLY_BYTES = 24 * 2**20
+_APPLY_BYTES = 12 * 2**20
 
 
 @dataclass(frozen=True)
@@ -49,9 +49,12 @@ class LevelKernels:
     fft_shape: tuple[int, int]
 
 
-@lru_cache(maxsize=4)
 def level_kernels(medium: LayeredMedium, grid: CellGrid, levels: tuple[int, ...]) -> LevelKernels:
-    """Kernels and their FFTs for every pair of meshed levels (cached).
+    """Kernels and their FFTs for every pair of meshed levels.
+
+    Not cached: each 3-D job has a window (and so a grid) of its own, so a
+    cache never hit (measured on the demo) and only kept the last jobs'
+    spectra alive.
 
     Reciprocity (the layered Green's function is symmetric in the two
     levels) gives ``K_ab = K_ba``; each pair is computed once, which also

@@ -28,7 +28,9 @@ def near_field_preconditioner(operator: CellOperator) -> Callable[[FloatArray], 
     half the slots), and a sparse product is about twice as fast as a
     product of padded dense blocks.
     """
-    rows, cols, values = [], [], []
+    rows: list[NDArray[np.int32]] = []
+    cols: list[NDArray[np.int32]] = []
+    values: list[FloatArray] = []
     for n, (a, cells) in enumerate(zip(operator.block_levels, operator.cells, strict=True)):
         local = _tile_members(operator.kernels.grid, cells)
         near = operator.near_correction[operator.starts[n]:operator.starts[n + 1],
@@ -42,21 +44,33 @@ def near_field_preconditioner(operator: CellOperator) -> Callable[[FloatArray], 
                                   cells[np.where(valid, chunk, 0)],
                                   operator.kernels.grid.ny, valid)
             _add_near_entries(blocks, chunk, near)
-            inverses = np.linalg.inv(blocks)
+            inverses = np.asarray(np.linalg.inv(blocks), dtype=np.float64)
             pairs = valid[:, :, None] & valid[:, None, :]
-            members = chunk + operator.starts[n]
+            # 32-bit indices (what the sparse matrix keeps anyway): the
+            # index lists are the larger part of the build's peak memory.
+            members = (chunk + operator.starts[n]).astype(np.int32)
             rows.append(np.broadcast_to(members[:, :, None], pairs.shape)[pairs])
             cols.append(np.broadcast_to(members[:, None, :], pairs.shape)[pairs])
             values.append(inverses[pairs])
-    matrix = scipy.sparse.csr_matrix(
-        (np.concatenate(values), (np.concatenate(rows), np.concatenate(cols))),
-        shape=(operator.size, operator.size))
+    matrix = _assembled(rows, cols, values, operator.size)
 
     def apply(residual: FloatArray) -> FloatArray:
         result: FloatArray = matrix @ residual
         return result
 
     return apply
+
+
+def _assembled(rows: list[NDArray[np.int32]], cols: list[NDArray[np.int32]],
+               values: list[FloatArray], size: int) -> scipy.sparse.csr_matrix:
+    """One CSR matrix of the tiles' entries; the chunk lists are emptied as
+    they are joined, so no chunk is held twice."""
+    data = np.concatenate(values)
+    values.clear()
+    coordinates = (np.concatenate(rows), np.concatenate(cols))
+    rows.clear()
+    cols.clear()
+    return scipy.sparse.csr_matrix((data, coordinates), shape=(size, size))
 
 
 def _add_near_entries(blocks: FloatArray, members: IntArray,
