@@ -36,6 +36,11 @@ BoolArray = NDArray[np.bool_]
 
 #: Charge in (V/mm) x mm^2 units to pF: 4 pi eps0 per mm, in pF.
 PF_PER_KERNEL_UNIT = 4.0 * np.pi * epsilon_0 * 1e-3 * 1e12
+#: From this CG tolerance on, the operator transforms in single precision
+#: (:func:`auditor.field.precise.operator.level_kernels`): its relative
+#: error, about 1e-7, stays a hundred times below the tolerance. Tighter
+#: solves (the analytic cross-checks run at 1e-6) keep double precision.
+SINGLE_PRECISION_FROM = 1e-5
 
 
 @dataclass(frozen=True)
@@ -80,7 +85,8 @@ def solve_batched(fixed: Sequence[LevelMesh], variants: Sequence[Variant], grid:
     meshes = list(fixed) + [m for v in variants for m in v.meshes]
     group_of = np.array([-1] * len(fixed) + [g for g, v in enumerate(variants)
                                              for _ in v.meshes])
-    operator = _operator(meshes, grid, medium, edge_correction)
+    operator = _operator(meshes, grid, medium, edge_correction,
+                         single=tolerance >= SINGLE_PRECISION_FROM)
     owner = np.concatenate([m.owner for m in meshes])
     block_of = np.repeat(np.arange(len(meshes)), np.diff(operator.starts))
     columns = [(g, j) for g, v in enumerate(variants) for j in v.driven]
@@ -145,9 +151,9 @@ def _row_nodes(node_of: IntArray, owner: IntArray, rows_active: BoolArray) -> In
 
 
 def _operator(meshes: Sequence[LevelMesh], grid: CellGrid, medium: LayeredMedium,
-              edge_correction: bool) -> CellOperator:
+              edge_correction: bool, single: bool) -> CellOperator:
     levels = tuple(sorted({m.level for m in meshes}))
-    kernels = level_kernels(medium, grid, levels)
+    kernels = level_kernels(medium, grid, levels, single)
     corrections = None
     if edge_correction:
         direct = high_k_coefficients(medium)

@@ -126,7 +126,11 @@ def test_floating_finger_sees_less_and_tends_to_grounded() -> None:
     grounded_delta, weak_delta = np.array(grounded.delta_pf), np.array(weak.delta_pf)
     assert np.all(weak_delta[:, :2] < grounded_delta[:, :2])
     assert np.all(weak_delta[:, :2] > 0)
-    assert np.allclose(strong.delta_pf, grounded.delta_pf, rtol=1e-4, atol=1e-8)
+    # Floor of 1e-6 of the largest change: the scans solve at the audits'
+    # tolerance with single-precision transforms (operator error ~1e-7), so
+    # the far segment's 5e-5 pF is known to a few 1e-8 pF only.
+    assert np.allclose(strong.delta_pf, grounded.delta_pf, rtol=1e-4,
+                       atol=1e-6 * grounded_delta.max())
 
 
 def test_bad_scan_step_is_a_usage_error() -> None:
