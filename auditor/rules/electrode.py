@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from collections.abc import Iterator
 
 from auditor.model.vocabulary import TOUCH_KINDS
@@ -35,8 +36,29 @@ def electrode_too_small(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     if have_mm < need_mm:
         yield call.finding(
             f"equivalent diameter {have_mm:.1f} mm is below {need_mm:.1f} mm for an "
-            f"overlay of {electrical_mm:.2f} mm electrical thickness",
+            f"overlay of {electrical_mm:.2f} mm electrical thickness{_strip_note(sensor)}",
             sensor, (("diameter_mm", have_mm), ("min_mm", need_mm)))
+
+
+#: Fingertip contact modelled as a 10 mm disk (physics.md §3: 8-10 mm disk
+#: model, contact patch 9-11 mm).
+FINGERTIP_MM = 10.0
+
+
+def _strip_note(sensor: Sensor) -> str:
+    """For a long narrow pad, what a fingertip covers of it: its length does
+    not help, a finger on it covers its width times one fingertip."""
+    box = sensor.geometry.minimum_rotated_rectangle
+    corners = list(box.exterior.coords) if box.geom_type == "Polygon" else []
+    if len(corners) < 4:
+        return ""
+    sides = sorted(math.dist(corners[i], corners[i + 1]) for i in range(2))
+    width_mm, length_mm = sides
+    if width_mm <= 0.0 or length_mm < 3.0 * width_mm:
+        return ""
+    covered = width_mm * min(length_mm, FINGERTIP_MM)
+    return (f" (a {width_mm:.1f} x {length_mm:.1f} mm strip: a {FINGERTIP_MM:.0f} mm "
+            f"fingertip covers at most {covered:.0f} mm² of it)")
 
 
 @sensor_rule(
@@ -75,9 +97,11 @@ def electrode_far_side(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     if sensor.layer != near and not any(
             o.layer == near and set(o.nets) == set(sensor.nets) and _overlap(o, sensor)
             for o in call.board.sensors):
+        bare = (f"; its copper is bare (solder mask opened on {sensor.layer}): if it is "
+                f"touched from that side, set touch_side") if sensor.exposed else ""
         yield call.finding(
             f"electrode is on {sensor.layer}; the touch surface is on the "
-            f"{call.board.settings.touch_side} ({near})", sensor)
+            f"{call.board.settings.touch_side} ({near}){bare}", sensor)
 
 
 @sensor_rule(
