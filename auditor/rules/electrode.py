@@ -104,7 +104,7 @@ def electrode_far_side(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
             f"{call.board.settings.touch_side} ({near}){bare}", sensor)
 
 
-@sensor_rule(
+@board_rule(
     "electrode-mask-open",
     title="Bare electrode copper under the finger",
     fix="Keep the electrode under solder mask (remove the pad's mask opening or the "
@@ -112,18 +112,21 @@ def electrode_far_side(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     severity=Severity.WARNING,
     thresholds=("electrode_must_be_covered",),
 )
-def electrode_mask_open(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+def electrode_mask_open(call: RuleCall) -> Iterator[Finding]:
     """With no cover over the board the finger touches the electrode itself:
     a solder-mask opening makes that a direct contact, so the reading jumps
     with skin moisture and every touch is an ESD strike straight into the
-    controller pin. The mask is the only insulation there."""
-    if call.limits.flag("electrode_must_be_covered") and sensor.exposed \
-            and call.board.settings.bare:
-        yield call.finding("electrode copper is exposed through a solder-mask opening and "
-                           "the finger touches the board directly (no overlay)", sensor)
+    controller pin. The mask is the only insulation there. Every electrode
+    drawn alike is one finding."""
+    if call.board.settings.bare:
+        yield from _mask_opened(
+            call, "electrode copper is exposed through a solder-mask opening and the finger "
+                  "touches the board directly (no overlay)",
+            "electrodes have copper exposed through a solder-mask opening and the finger "
+            "touches the board directly (no overlay)")
 
 
-@sensor_rule(
+@board_rule(
     "electrode-mask-open-covered",
     title="Solder mask opened over an electrode under a cover",
     fix="Keep the electrode under solder mask unless the opening is meant (a spring contact "
@@ -131,15 +134,23 @@ def electrode_mask_open(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     severity=Severity.INFO,
     thresholds=("electrode_must_be_covered",),
 )
-def electrode_mask_open_covered(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+def electrode_mask_open_covered(call: RuleCall) -> Iterator[Finding]:
     """Under a cover the finger never reaches the copper, so an opening only
     matters a little: bare copper corrodes, and the mask's missing thickness
     leaves an air gap that changes the baseline from pad to pad. Openings
-    are also drawn on purpose (a landing pad for a spring contact)."""
-    if call.limits.flag("electrode_must_be_covered") and sensor.exposed \
-            and not call.board.settings.bare:
-        yield call.finding("electrode copper is exposed through a solder-mask opening "
-                           "(under the cover)", sensor)
+    are also drawn on purpose (a landing pad for a spring contact). Every
+    electrode drawn alike is one finding."""
+    if not call.board.settings.bare:
+        yield from _mask_opened(
+            call, "electrode copper is exposed through a solder-mask opening (under the cover)",
+            "electrodes have copper exposed through a solder-mask opening (under the cover)")
+
+
+def _mask_opened(call: RuleCall, single: str, many: str) -> Iterator[Finding]:
+    """One finding for the touch electrodes drawn with their mask opened."""
+    exposed = [s for s in call.board.sensors if s.kind in TOUCH_KINDS and s.exposed]
+    if call.limits.flag("electrode_must_be_covered") and exposed:
+        yield one_for_all(call, exposed, single, many)
 
 
 @board_rule(

@@ -10,7 +10,7 @@ from auditor.rules.finding import Finding, Severity
 from auditor.rules.groups import in_one_group
 from auditor.rules.microstrip import added_pf
 from auditor.rules.registry import RuleCall, board_rule, sensor_rule
-from auditor.rules.repeated import one_for_all, one_per_trace
+from auditor.rules.repeated import listed, one_for_all, one_per_trace
 from auditor.rules.sense_path import (
     at_crossing,
     at_neighbour,
@@ -263,18 +263,22 @@ def _quiet(net: str, *, neighbour_sense: bool, sensor: Sensor, call: RuleCall) -
 )
 def trace_under_electrode(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     """A sense trace under another electrode is itself touched through it: a
-    finger on the other key shows up on this one too."""
+    finger on the other key shows up on this one too. One trace is one
+    finding, naming every electrode it passes."""
     path = sensor.path
     if path is None:
         return
     by_name = {s.name: s for s in call.board.sensors}
-    for other in sorted(set(path.under_electrodes)):
-        if other in by_name and (in_one_group(sensor, by_name[other])
-                                 or by_name[other].kind not in TOUCH_KINDS):
-            continue  # a segment's trace beside its own slider's segments: by design
-        yield call.finding(f"sense trace passes under or beside electrode {other}", sensor,
-                           nets=sensor.nets + nets_of(other, call),
-                           item=dict(path.under_places).get(other))
+    # a segment's trace beside its own slider's segments is by design
+    others = [o for o in sorted(set(path.under_electrodes)) if o not in by_name or not (
+        in_one_group(sensor, by_name[o]) or by_name[o].kind not in TOUCH_KINDS)]
+    if not others:
+        return
+    named = (f"electrode {others[0]}" if len(others) == 1
+             else f"{len(others)} electrodes: {listed(others)}")
+    yield call.finding(f"sense trace passes under or beside {named}", sensor,
+                       nets=sensor.nets + tuple(n for o in others for n in nets_of(o, call)),
+                       item=dict(path.under_places).get(others[0]))
 
 
 @board_rule(

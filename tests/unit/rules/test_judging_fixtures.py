@@ -107,6 +107,7 @@ def test_generator_output_is_committed(tmp_path: Path) -> None:
     ("two-sliders-side-by-side", "electrodes-too-close"),
     ("backlit-keys", "noisy-part-near"),
     ("shared-sense-trace", "trace-parallel-run"),
+    ("mask-opened-electrodes", "electrode-mask-open-covered"),
 ])
 def test_one_cause_is_one_finding_with_every_electrode(name: str, rule_id: str) -> None:
     """One cause repeated on every electrode (wired straight to one

@@ -392,3 +392,14 @@ def test_paired_transmitter_has_no_result_by_design() -> None:
     assert ids(context(tx, rx, unsolved=why), "electrode-unsolved") == []
     lone = replace(tx, group="")  # no receive side to carry it: still reported
     assert ids(context(lone, unsolved=why), "electrode-unsolved") == ["electrode-unsolved"]
+
+
+def test_trace_under_several_electrodes_is_one_finding() -> None:
+    """One trace passing three other keys is one cause (common practice, no
+    source): one finding naming them all, with their nets."""
+    keys = [sensor(f"TOUCH{i}") for i in (2, 3, 4)]
+    under = sensor("TOUCH1", path=path(under_electrodes=("TOUCH4", "TOUCH2", "TOUCH3")))
+    (found,) = get_rule("trace-under-electrode").run(context(under, *keys))
+    assert found.message == ("sense trace passes under or beside 3 electrodes: "
+                             "TOUCH2, TOUCH3, TOUCH4")
+    assert set(found.nets) == {"TOUCH1", "TOUCH2", "TOUCH3", "TOUCH4"}
