@@ -324,7 +324,8 @@ def _sensor_results(sensors: tuple[Sensor, ...], metrics: Mapping[str, PadMetric
                     thresholds: Mapping[str, ThresholdValue]) -> tuple[SensorResult, ...]:
     ranks = sensitivity_ranks(metrics)
     return tuple(SensorResult(s, metrics.get(s.name), ranks.get(s.name, 0),
-                              sensor_strength(metrics.get(s.name), thresholds))
+                              sensor_strength(metrics.get(s.name), thresholds,
+                                              s.equivalent_diameter_mm))
                  for s in sensors)
 
 

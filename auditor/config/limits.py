@@ -163,8 +163,9 @@ _THRESHOLDS: dict[str, Limit] = {
                                   "common practice, no source"),
     "trace_max_vias": _count(1000),
     "trace_max_crossings": _count(100_000),
-    "controller_max_cp_pf": Limit("number", "pF", 0.0, 100_000.0,
-                                  "common practice, no source: past any controller input"),
+    **{key: Limit("number", "pF", 0.0, 100_000.0,
+                  "common practice, no source: past any controller input")
+       for key in ("controller_max_cp_pf", "large_electrode_max_cp_pf")},
     "pin_pf": Limit("number", "pF", 0.0, 50.0,
                     "a controller pin of more than 50 pF is a typing error, not a pin"),
     "min_delta_c_pf": Limit("number", "pF", 0.0, 1000.0,

@@ -14,6 +14,7 @@ from typing import Protocol
 
 from auditor.rules.context import PadMetricsLike, ThresholdValue
 from auditor.rules.finding import Severity
+from auditor.rules.metrics import cp_limit_pf
 
 #: Every verdict, worst first.
 ELECTRODE_VERDICTS: tuple[str, ...] = ("error", "warning", "waived", "unsolved", "ok")
@@ -34,15 +35,17 @@ class DecidedLike(Protocol):
 
 
 def sensor_strength(metrics: PadMetricsLike | None,
-                    thresholds: Mapping[str, ThresholdValue]) -> str:
+                    thresholds: Mapping[str, ThresholdValue], diameter_mm: float = 0.0) -> str:
     """The signal strength: ``unsolved`` without metrics; ``fail`` when ΔC is
     below the profile's ``min_delta_c_pf``; ``weak`` when ΔC/Cp is below
-    ``min_delta_ratio`` or Cp above ``controller_max_cp_pf``; else ``ok``."""
+    ``min_delta_ratio`` or Cp above the limit for an electrode of
+    ``diameter_mm`` (equivalent diameter; see
+    :func:`auditor.rules.metrics.cp_limit_pf`); else ``ok``."""
     if metrics is None:
         return "unsolved"
     if metrics.delta_c_pf < float(thresholds.get("min_delta_c_pf", 0.0)):
         return "fail"
-    too_high = metrics.cp_total_pf > float(thresholds.get("controller_max_cp_pf", float("inf")))
+    too_high = metrics.cp_total_pf > cp_limit_pf(diameter_mm, thresholds)
     if metrics.delta_ratio < float(thresholds.get("min_delta_ratio", 0.0)) or too_high:
         return "weak"
     return "ok"

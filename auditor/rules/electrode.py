@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from collections.abc import Iterator
 
 from auditor.model.vocabulary import TOUCH_KINDS
@@ -35,8 +36,29 @@ def electrode_too_small(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     if have_mm < need_mm:
         yield call.finding(
             f"equivalent diameter {have_mm:.1f} mm is below {need_mm:.1f} mm for an "
-            f"overlay of {electrical_mm:.2f} mm electrical thickness",
+            f"overlay of {electrical_mm:.2f} mm electrical thickness{_strip_note(sensor)}",
             sensor, (("diameter_mm", have_mm), ("min_mm", need_mm)))
+
+
+#: Fingertip contact modelled as a 10 mm disk (physics.md §3: 8-10 mm disk
+#: model, contact patch 9-11 mm).
+FINGERTIP_MM = 10.0
+
+
+def _strip_note(sensor: Sensor) -> str:
+    """For a long narrow pad, what a fingertip covers of it: its length does
+    not help, a finger on it covers its width times one fingertip."""
+    box = sensor.geometry.minimum_rotated_rectangle
+    corners = list(box.exterior.coords) if box.geom_type == "Polygon" else []
+    if len(corners) < 4:
+        return ""
+    sides = sorted(math.dist(corners[i], corners[i + 1]) for i in range(2))
+    width_mm, length_mm = sides
+    if width_mm <= 0.0 or length_mm < 3.0 * width_mm:
+        return ""
+    covered = width_mm * min(length_mm, FINGERTIP_MM)
+    return (f" (a {width_mm:.1f} x {length_mm:.1f} mm strip: a {FINGERTIP_MM:.0f} mm "
+            f"fingertip covers at most {covered:.0f} mm² of it)")
 
 
 @sensor_rule(
@@ -75,12 +97,14 @@ def electrode_far_side(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     if sensor.layer != near and not any(
             o.layer == near and set(o.nets) == set(sensor.nets) and _overlap(o, sensor)
             for o in call.board.sensors):
+        bare = (f"; its copper is bare (solder mask opened on {sensor.layer}): if it is "
+                f"touched from that side, set touch_side") if sensor.exposed else ""
         yield call.finding(
             f"electrode is on {sensor.layer}; the touch surface is on the "
-            f"{call.board.settings.touch_side} ({near})", sensor)
+            f"{call.board.settings.touch_side} ({near}){bare}", sensor)
 
 
-@sensor_rule(
+@board_rule(
     "electrode-mask-open",
     title="Bare electrode copper under the finger",
     fix="Keep the electrode under solder mask (remove the pad's mask opening or the "
@@ -88,18 +112,21 @@ def electrode_far_side(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     severity=Severity.WARNING,
     thresholds=("electrode_must_be_covered",),
 )
-def electrode_mask_open(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+def electrode_mask_open(call: RuleCall) -> Iterator[Finding]:
     """With no cover over the board the finger touches the electrode itself:
     a solder-mask opening makes that a direct contact, so the reading jumps
     with skin moisture and every touch is an ESD strike straight into the
-    controller pin. The mask is the only insulation there."""
-    if call.limits.flag("electrode_must_be_covered") and sensor.exposed \
-            and call.board.settings.bare:
-        yield call.finding("electrode copper is exposed through a solder-mask opening and "
-                           "the finger touches the board directly (no overlay)", sensor)
+    controller pin. The mask is the only insulation there. Every electrode
+    drawn alike is one finding."""
+    if call.board.settings.bare:
+        yield from _mask_opened(
+            call, "electrode copper is exposed through a solder-mask opening and the finger "
+                  "touches the board directly (no overlay)",
+            "electrodes have copper exposed through a solder-mask opening and the finger "
+            "touches the board directly (no overlay)")
 
 
-@sensor_rule(
+@board_rule(
     "electrode-mask-open-covered",
     title="Solder mask opened over an electrode under a cover",
     fix="Keep the electrode under solder mask unless the opening is meant (a spring contact "
@@ -107,15 +134,23 @@ def electrode_mask_open(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     severity=Severity.INFO,
     thresholds=("electrode_must_be_covered",),
 )
-def electrode_mask_open_covered(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+def electrode_mask_open_covered(call: RuleCall) -> Iterator[Finding]:
     """Under a cover the finger never reaches the copper, so an opening only
     matters a little: bare copper corrodes, and the mask's missing thickness
     leaves an air gap that changes the baseline from pad to pad. Openings
-    are also drawn on purpose (a landing pad for a spring contact)."""
-    if call.limits.flag("electrode_must_be_covered") and sensor.exposed \
-            and not call.board.settings.bare:
-        yield call.finding("electrode copper is exposed through a solder-mask opening "
-                           "(under the cover)", sensor)
+    are also drawn on purpose (a landing pad for a spring contact). Every
+    electrode drawn alike is one finding."""
+    if not call.board.settings.bare:
+        yield from _mask_opened(
+            call, "electrode copper is exposed through a solder-mask opening (under the cover)",
+            "electrodes have copper exposed through a solder-mask opening (under the cover)")
+
+
+def _mask_opened(call: RuleCall, single: str, many: str) -> Iterator[Finding]:
+    """One finding for the touch electrodes drawn with their mask opened."""
+    exposed = [s for s in call.board.sensors if s.kind in TOUCH_KINDS and s.exposed]
+    if call.limits.flag("electrode_must_be_covered") and exposed:
+        yield one_for_all(call, exposed, single, many)
 
 
 @board_rule(

@@ -110,7 +110,8 @@ def segments_unequal_area(call: RuleCall) -> Iterator[Finding]:
 def segments_unequal_trace(call: RuleCall) -> Iterator[Finding]:
     """Each segment's trace adds to its baseline (about 0.04-0.06 pF/mm over
     ground); very different lengths give segments different baselines and
-    different relative sensitivity."""
+    different relative sensitivity. When the field solve ran, the message
+    gives the segments' Cp, the difference the lengths make."""
     limit_mm = call.limits["segment_trace_max_spread_mm"]
     for group, members in segment_groups(call.board.sensors).items():
         routed = [s for s in members if s.path is not None]
@@ -120,8 +121,12 @@ def segments_unequal_trace(call: RuleCall) -> Iterator[Finding]:
         spread_mm = max(lengths) - min(lengths)
         if spread_mm > limit_mm + EPS_MM:
             longest = max(routed, key=lambda s: (s.path.length_mm if s.path else 0.0, s.name))
+            cps = [m.cp_total_pf for s in routed if (m := call.board.metrics.get(s.name))]
+            solved = (f"; solved Cp {min(cps):.1f} to {max(cps):.1f} pF"
+                      if len(cps) == len(routed) else "")
             yield call.finding(
                 f"segment traces of {group} range from {min(lengths):.1f} to "
-                f"{max(lengths):.1f} mm (spread {spread_mm:.1f} mm, limit {limit_mm:.1f} mm)",
+                f"{max(lengths):.1f} mm (spread {spread_mm:.1f} mm, limit {limit_mm:.1f} mm"
+                f"{solved})",
                 longest, (("spread_mm", spread_mm), ("max_mm", limit_mm)),
                 nets=_nets(members), refs=_refs(members))

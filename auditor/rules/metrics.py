@@ -6,13 +6,43 @@ or could not solve them; the report marks those sensors ``unsolved``).
 
 from __future__ import annotations
 
-from collections.abc import Iterator
+import math
+from collections.abc import Iterator, Mapping
 
+from auditor.rules.context import ThresholdValue
 from auditor.rules.finding import Finding, Severity
 from auditor.rules.groups import in_one_group
 from auditor.rules.registry import RuleCall, board_rule, sensor_rule
 from auditor.rules.repeated import one_for_all
 from auditor.sensors.model import Sensor
+
+#: The thresholds that set an electrode's Cp limit (:func:`cp_limit_pf`).
+_CP_LIMITS = ("controller_max_cp_pf", "large_electrode_max_cp_pf", "pad_max_diameter_mm")
+
+
+def cp_limit_pf(diameter_mm: float, limits: Mapping[str, ThresholdValue]) -> float:
+    """The Cp an electrode of this equivalent diameter is held to.
+
+    ``controller_max_cp_pf`` is the design target of a fingertip button (the
+    trade's "<= 20-30 pF" sits beside its 8-15 mm pads: the pad itself is a
+    few pF, the rest is layout). An electrode wider than
+    ``pad_max_diameter_mm`` (a slider tile, a palm pad) carries more Cp in
+    its own copper by design, and a fingertip under it adds more ΔC in step;
+    it is held to the controller's input range, ``large_electrode_max_cp_pf``
+    (physics.md §4.1, common practice, no source), never to less than the
+    button target.
+
+    >>> cp_limit_pf(10.0, {"controller_max_cp_pf": 30.0, "pad_max_diameter_mm": 20.0,
+    ...                    "large_electrode_max_cp_pf": 50.0})
+    30.0
+    >>> cp_limit_pf(37.4, {"controller_max_cp_pf": 30.0, "pad_max_diameter_mm": 20.0,
+    ...                    "large_electrode_max_cp_pf": 50.0})
+    50.0
+    """
+    target = float(limits.get("controller_max_cp_pf", math.inf))
+    if diameter_mm <= float(limits.get("pad_max_diameter_mm", math.inf)):
+        return target
+    return max(target, float(limits.get("large_electrode_max_cp_pf", target)))
 
 
 @sensor_rule(
@@ -21,16 +51,20 @@ from auditor.sensors.model import Sensor
     fix="Lower Cp: thinner or shorter trace, hatch instead of solid ground under and around "
         "the pad, wider ground gap, smaller pad.",
     severity=Severity.WARNING,
-    thresholds=("controller_max_cp_pf",),
+    thresholds=_CP_LIMITS,
 )
 def cp_too_high(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     """A controller measures a touch as a change on top of the baseline; above
     its design range the baseline uses up the measurement range and the
-    resolution left for the finger's change drops."""
+    resolution left for the finger's change drops. A button is held to the
+    design target; an electrode larger than a button, whose own copper puts
+    it past that target by design, to the controller's input range (its
+    ΔC/Cp is judged by ratio-low)."""
     metrics = call.board.metrics.get(sensor.name)
     if metrics is None:
         return
-    limit = call.limits["controller_max_cp_pf"]
+    declared = {name: call.limits[name] for name in _CP_LIMITS}
+    limit = cp_limit_pf(sensor.equivalent_diameter_mm, declared)
     if metrics.cp_total_pf > limit + 1e-12:
         yield call.finding(
             f"baseline Cp {metrics.cp_total_pf:.1f} pF exceeds {limit:.1f} pF", sensor,

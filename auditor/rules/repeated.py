@@ -5,8 +5,10 @@ electrode."""
 
 from __future__ import annotations
 
-from collections.abc import Iterable, Sequence
+from collections.abc import Callable, Iterable, Iterator, Sequence
+from dataclasses import replace
 
+from auditor.model.vocabulary import TOUCH_KINDS
 from auditor.rules.finding import Finding
 from auditor.rules.registry import RuleCall
 from auditor.sensors.model import Sensor
@@ -49,3 +51,39 @@ def one_for_all(call: RuleCall, sensors: Iterable[Sensor], single: str, many: st
     return call.finding(
         f"{len(ordered)} {many}: {listed([s.name for s in ordered])}", first,
         (("electrodes", float(len(ordered))), *measured), nets=nets, refs=refs, layer=layer)
+
+
+def one_per_trace(call: RuleCall,
+                  per_sensor: Callable[[Sensor, RuleCall], Iterable[Finding]]) -> Iterator[Finding]:
+    """``per_sensor``'s findings on every touch electrode, one per piece of copper.
+
+    Electrodes on one sense net (the keys of a matrix row, the pads of one
+    channel) share the trace from where their branches join to the
+    controller; what that shared stretch runs beside or crosses is one cause.
+    Findings with the same message at the same place from electrodes of the
+    same nets are merged: sitting on the first electrode by name, with every
+    electrode's nets and references, the count in ``measured`` and the
+    electrodes named in the message. A finding of one electrode alone is
+    left as it is (the identity baselines and waivers hold).
+    """
+    groups: dict[tuple[object, ...], list[tuple[Sensor, Finding]]] = {}
+    for sensor in sorted(call.board.sensors, key=lambda s: s.name):
+        if sensor.kind not in TOUCH_KINDS:
+            continue
+        for found in per_sensor(sensor, call):
+            key = (found.message, found.x_mm, found.y_mm, found.layer, tuple(sorted(sensor.nets)))
+            groups.setdefault(key, []).append((sensor, found))
+    for members in groups.values():
+        yield members[0][1] if len(members) == 1 else _merged(members)
+
+
+def _merged(members: Sequence[tuple[Sensor, Finding]]) -> Finding:
+    first = members[0][1]
+    names = [s.name for s, _ in members]
+    return replace(
+        first,
+        message=f"{len(members)} electrodes on one sense trace ({listed(names)}): "
+                f"{first.message}",
+        nets=tuple(sorted({n for _, f in members for n in f.nets})),
+        refs=tuple(sorted({r for _, f in members for r in f.refs})),
+        measured=(("electrodes", float(len(members))), *first.measured))

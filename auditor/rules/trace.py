@@ -10,7 +10,7 @@ from auditor.rules.finding import Finding, Severity
 from auditor.rules.groups import in_one_group
 from auditor.rules.microstrip import added_pf
 from auditor.rules.registry import RuleCall, board_rule, sensor_rule
-from auditor.rules.repeated import one_for_all
+from auditor.rules.repeated import listed, one_for_all, one_per_trace
 from auditor.rules.sense_path import (
     at_crossing,
     at_neighbour,
@@ -136,7 +136,7 @@ def trace_too_many_vias(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
             (("vias", float(path.vias)), ("max", limit)))
 
 
-@sensor_rule(
+@board_rule(
     "trace-parallel-run",
     title="Sense trace runs beside another net",
     fix="Separate the sense trace from the other net (2 mm or more, or a ground hatch between) "
@@ -145,14 +145,19 @@ def trace_too_many_vias(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     severity=Severity.WARNING,
     thresholds=("parallel_max_mm", "sense_spacing_widths"),
 )
-def trace_parallel_run(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+def trace_parallel_run(call: RuleCall) -> Iterator[Finding]:
     """Mutual capacitance between two parallel traces grows with the length
     they run together; a signal on the other net then couples straight into
     the measurement. Two sense lines (another electrode's trace, before or
     after its series resistor) are quiet neighbours: they only need a spacing
     of a few trace widths. A ground beside the trace (any ground net, a
     second or a connector's return too) carries no signal: it shields, and
-    what it costs is baseline capacitance, which the Cp rules judge."""
+    what it costs is baseline capacitance, which the Cp rules judge. The
+    stretch that electrodes on one sense net share is one finding."""
+    yield from one_per_trace(call, _parallel_runs)
+
+
+def _parallel_runs(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     path = sensor.path
     if path is None:
         return
@@ -173,7 +178,7 @@ def trace_parallel_run(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
                 nets=sensor.nets + (neighbour.net,), **at_neighbour(neighbour))
 
 
-@sensor_rule(
+@board_rule(
     "trace-near-noisy-net",
     title="Sense trace close to a noisy net",
     fix="Keep switching, PWM and communication nets well away from the sense trace; cross "
@@ -181,12 +186,17 @@ def trace_parallel_run(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     severity=Severity.ERROR,
     thresholds=("noisy_net_min_mm",),
 )
-def trace_near_noisy_net(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+def trace_near_noisy_net(call: RuleCall) -> Iterator[Finding]:
     """Fast edges on a nearby net inject charge through even a small mutual
     capacitance; the controller integrates it as signal. Distances are taken
     on one layer (a net on another layer that the trace crosses is the
     crossings rule's business) and away from the controller's own pins,
-    where the nets on neighbouring pins cannot be avoided."""
+    where the nets on neighbouring pins cannot be avoided. The stretch that
+    electrodes on one sense net share is one finding."""
+    yield from one_per_trace(call, _noisy_nets_near)
+
+
+def _noisy_nets_near(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     path = sensor.path
     if path is None:
         return
@@ -202,20 +212,31 @@ def trace_near_noisy_net(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
                 nets=sensor.nets + (neighbour.net,), **at_neighbour(neighbour))
 
 
-@sensor_rule(
+@board_rule(
     "trace-crossings",
     title="Sense trace crosses many other nets",
     fix="Reduce the crossings; where the sense trace must cross, do it at right angles.",
     severity=Severity.INFO,
     thresholds=("trace_max_crossings",),
 )
-def trace_crossings(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
+def trace_crossings(call: RuleCall) -> Iterator[Finding]:
     """A crossing on an adjacent layer is a small capacitor to the other net;
-    one or two at right angles are normal, many add up to coupling and Cp."""
+    one or two at right angles are normal, many add up to coupling and Cp.
+    Only nets that carry a signal of their own count: a ground or a driven
+    shield crossed shields (what it costs is Cp, which the Cp rules judge),
+    and another sense line is a quiet neighbour (as for trace-parallel-run);
+    the rows and columns of a touch matrix cross each other by design. The
+    stretch that electrodes on one sense net share is one finding."""
+    yield from one_per_trace(call, _crossings)
+
+
+def _crossings(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     path = sensor.path
     if path is None:
         return
-    crossed = sorted((n for n in path.neighbours if n.crossings > 0), key=lambda n: n.net)
+    crossed = sorted((n for n in path.neighbours if n.crossings > 0
+                      and not _quiet(n.net, neighbour_sense=is_sense(n, call), sensor=sensor,
+                                     call=call)), key=lambda n: n.net)
     total = sum(n.crossings for n in crossed)
     limit = call.limits["trace_max_crossings"]
     if total > limit:
@@ -227,6 +248,13 @@ def trace_crossings(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
             nets=sensor.nets + tuple(n.net for n in crossed), **at_crossing(most))
 
 
+def _quiet(net: str, *, neighbour_sense: bool, sensor: Sensor, call: RuleCall) -> bool:
+    """A net with no signal of its own to couple in: a ground, a driven
+    shield, another sense line or a segment of the sensor's own slider."""
+    return neighbour_sense or is_shield_net(net) or is_ground_name(net) \
+        or sibling_net(sensor, net, call)
+
+
 @sensor_rule(
     "trace-under-electrode",
     title="Sense trace passes under or beside another electrode",
@@ -235,18 +263,22 @@ def trace_crossings(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
 )
 def trace_under_electrode(sensor: Sensor, call: RuleCall) -> Iterator[Finding]:
     """A sense trace under another electrode is itself touched through it: a
-    finger on the other key shows up on this one too."""
+    finger on the other key shows up on this one too. One trace is one
+    finding, naming every electrode it passes."""
     path = sensor.path
     if path is None:
         return
     by_name = {s.name: s for s in call.board.sensors}
-    for other in sorted(set(path.under_electrodes)):
-        if other in by_name and (in_one_group(sensor, by_name[other])
-                                 or by_name[other].kind not in TOUCH_KINDS):
-            continue  # a segment's trace beside its own slider's segments: by design
-        yield call.finding(f"sense trace passes under or beside electrode {other}", sensor,
-                           nets=sensor.nets + nets_of(other, call),
-                           item=dict(path.under_places).get(other))
+    # a segment's trace beside its own slider's segments is by design
+    others = [o for o in sorted(set(path.under_electrodes)) if o not in by_name or not (
+        in_one_group(sensor, by_name[o]) or by_name[o].kind not in TOUCH_KINDS)]
+    if not others:
+        return
+    named = (f"electrode {others[0]}" if len(others) == 1
+             else f"{len(others)} electrodes: {listed(others)}")
+    yield call.finding(f"sense trace passes under or beside {named}", sensor,
+                       nets=sensor.nets + tuple(n for o in others for n in nets_of(o, call)),
+                       item=dict(path.under_places).get(others[0]))
 
 
 @board_rule(

@@ -7,8 +7,11 @@ must sit and how many of some there must be.
 What each structure must (not) raise is touch-layout practice (common
 practice, no source): distances between nets count on one layer only; sense
 nets and supply rails are not noise sources whatever their names; protection
-diodes switch nothing; the nets on a controller's neighbouring pins cannot be
-kept away from its sense pins; slider and wheel segments are close and
+diodes switch nothing; a ground, a guard or another sense line crossed
+carries no signal of its own (a touch matrix crosses its rows and columns by
+design); the stretch of trace several pads on one net share is one cause;
+the nets on a controller's neighbouring pins cannot be kept away from its
+sense pins; slider and wheel segments are close and
 interleaved by design; a board without electrodes is not an error.
 """
 
@@ -103,6 +106,8 @@ def test_generator_output_is_committed(tmp_path: Path) -> None:
     ("unrouted-electrodes", "trace-unfollowed"),
     ("two-sliders-side-by-side", "electrodes-too-close"),
     ("backlit-keys", "noisy-part-near"),
+    ("shared-sense-trace", "trace-parallel-run"),
+    ("mask-opened-electrodes", "electrode-mask-open-covered"),
 ])
 def test_one_cause_is_one_finding_with_every_electrode(name: str, rule_id: str) -> None:
     """One cause repeated on every electrode (wired straight to one

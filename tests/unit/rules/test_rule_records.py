@@ -392,3 +392,27 @@ def test_paired_transmitter_has_no_result_by_design() -> None:
     assert ids(context(tx, rx, unsolved=why), "electrode-unsolved") == []
     lone = replace(tx, group="")  # no receive side to carry it: still reported
     assert ids(context(lone, unsolved=why), "electrode-unsolved") == ["electrode-unsolved"]
+
+
+def test_trace_under_several_electrodes_is_one_finding() -> None:
+    """One trace passing three other keys is one cause (common practice, no
+    source): one finding naming them all, with their nets."""
+    keys = [sensor(f"TOUCH{i}") for i in (2, 3, 4)]
+    under = sensor("TOUCH1", path=path(under_electrodes=("TOUCH4", "TOUCH2", "TOUCH3")))
+    (found,) = get_rule("trace-under-electrode").run(context(under, *keys))
+    assert found.message == ("sense trace passes under or beside 3 electrodes: "
+                             "TOUCH2, TOUCH3, TOUCH4")
+    assert set(found.nets) == {"TOUCH1", "TOUCH2", "TOUCH3", "TOUCH4"}
+
+
+def test_unequal_segment_traces_give_the_solved_cp_when_known() -> None:
+    """Each segment's trace adds to its baseline (physics.md §1.8, about
+    0.04-0.06 pF/mm over ground); the solved Cp says how much the lengths
+    matter, so the message carries it when every segment was solved."""
+    ctx = slider((72,) * 4, (30, 30, 30, 51))
+    solved = replace(ctx, metrics={f"SLIDER_{i}": metrics(cp=cp) for i, cp in
+                                   ((1, 12.0), (2, 12.1), (3, 12.2), (4, 13.0))})
+    (plain,) = get_rule("segments-unequal-trace").run(ctx)
+    (with_cp,) = get_rule("segments-unequal-trace").run(solved)
+    assert "solved" not in plain.message
+    assert with_cp.message.endswith("limit 20.0 mm; solved Cp 12.0 to 13.0 pF)")
