@@ -183,7 +183,13 @@ def with_lumped(metrics: PadMetrics, sensor: Sensor, board: Board,
     share = _pin_share(sensor, parts)
     total, delta = seen_by_pin(metrics.cp_pad_pf, metrics.cp_trace_pf, metrics.delta_c_pf,
                                pin_pf, parts, share)
+    listed = (*parts.electrode_side, *((parts.series,) if parts.series else ()), *parts.pin_side)
     parts_pf = total - metrics.cp_pad_pf - metrics.cp_trace_pf - pin_pf
+    # The parts' share is what is left of the total; with no part that adds
+    # capacitance it is zero, not the subtraction's rounding (-8.9e-16 was
+    # in the JSON).
+    if abs(parts_pf) <= 1e-12 * max(total, 1.0):
+        parts_pf = 0.0
     quick: dict[str, float] = {}
     if (metrics.quick_cp_pad_pf is not None and metrics.quick_cp_total_pf is not None
             and metrics.quick_delta_c_pf is not None):
@@ -191,7 +197,6 @@ def with_lumped(metrics: PadMetrics, sensor: Sensor, board: Board,
             metrics.quick_cp_pad_pf, metrics.quick_cp_total_pf - metrics.quick_cp_pad_pf,
             metrics.quick_delta_c_pf, pin_pf, parts, share)
         quick = {"total": quick_total, "delta": quick_delta}
-    listed = (*parts.electrode_side, *((parts.series,) if parts.series else ()), *parts.pin_side)
     head = (f"Cp total = pad {metrics.cp_pad_pf:.3g} + trace {metrics.cp_trace_pf:.3g} + pin "
             f"{pin_pf:g} ({origin}) + parts {parts_pf:.3g} pF")
     lumped = replace(metrics, cp_total_pf=total, delta_c_pf=delta,

@@ -40,7 +40,8 @@ def touch1() -> dict[str, PadMetrics]:
 
 def test_plain_cp_total_is_copper_plus_pin(touch1: dict[str, PadMetrics]) -> None:
     plain = touch1["plain"]
-    assert plain.cp_pin_pf == PIN_PF and plain.cp_parts_pf == pytest.approx(0.0, abs=1e-12)
+    # Exactly zero with no parts, not the rounding of a subtraction.
+    assert plain.cp_pin_pf == PIN_PF and plain.cp_parts_pf == 0.0
     assert plain.cp_total_pf == pytest.approx(plain.cp_pad_pf + plain.cp_trace_pf + PIN_PF)
     assert [(p.ref, p.connection) for p in plain.parts] == [("R1", "series-resistor")]
 
