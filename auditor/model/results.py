@@ -60,6 +60,9 @@ class PadMetrics:
     quick_cp_pad_pf: float | None = None
     quick_cp_total_pf: float | None = None
     quick_delta_c_pf: float | None = None
+    #: With ``method == "precise"`` and no quick estimate beside it: why
+    #: (not computed, or the electrode does not map onto the quick model).
+    quick_missing: str = ""
     #: The controller pin's own capacitance and the net effect of the parts
     #: on the sense net, both included in ``cp_total_pf``: Cp total = pad +
     #: trace (with vias) + pin + parts. ``cp_parts_pf`` is negative when a

@@ -44,9 +44,10 @@ def _metrics(m: PadMetrics | None) -> dict[str, Any] | None:
 
 
 def _quick(m: PadMetrics) -> dict[str, Any]:
-    """The quick estimate beside a precise result (absent for quick metrics)."""
+    """The quick estimate beside a precise result, or why there is none
+    (both absent for quick metrics)."""
     if m.quick_cp_total_pf is None and m.quick_delta_c_pf is None:
-        return {}
+        return {"quick_missing": m.quick_missing} if m.quick_missing else {}
     return {"quick": {"cp_pad_pf": significant(m.quick_cp_pad_pf),
                       "cp_total_pf": significant(m.quick_cp_total_pf),
                       "delta_c_pf": significant(m.quick_delta_c_pf)}}

@@ -84,13 +84,20 @@ def method_table(console: Console, results: list[SensorResult]) -> None:
 
 
 def _reasons(console: Console, solved: list[SensorResult]) -> None:
-    """Why each model answered, electrodes with the same reason on one line."""
+    """Why each model answered, and why a precise one has no quick estimate
+    beside it; electrodes with the same reason on one line."""
     by_reason: dict[str, list[str]] = {}
     for r in solved:
         if r.metrics is not None and r.metrics.method_reason:
             by_reason.setdefault(r.metrics.method_reason, []).append(r.sensor.name)
+    missing: dict[str, list[str]] = {}
+    for r in solved:
+        if r.metrics is not None and r.metrics.quick_missing:
+            missing.setdefault(r.metrics.quick_missing, []).append(r.sensor.name)
     for reason, names in by_reason.items():
         print_note(console, f"{', '.join(names)}: {reason}")
+    for reason, names in missing.items():
+        print_note(console, f"{', '.join(names)}: quick estimate {reason}")
 
 
 def strongest_pairs(extras: PreciseExtras) -> list[CrosstalkPair]:

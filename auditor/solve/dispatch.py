@@ -23,7 +23,8 @@ from auditor.model.vocabulary import SELF_KINDS
 from auditor.sensors.model import Sensor
 from auditor.solve.jobs import PreciseWork
 from auditor.solve.lumped import with_lumped_parts
-from auditor.solve.mutual_pairs import mutual_metrics
+from auditor.solve.mutual_jobs import PairContext, pair_metrics, queue_pairs
+from auditor.solve.mutual_pairs import plan_pairs
 from auditor.solve.quick import QuickSolves, metrics_from_quick
 from auditor.solve.route import Route, forced, route_for
 from auditor.solve.setup import FieldInput, pad_setup_for, quick_unfit_reason
@@ -129,8 +130,9 @@ def solve_sensors(board: Board, sensors: tuple[Sensor, ...], config: Config, *,
     unsolved; :func:`unsolved_reasons` says why) — nothing is made up. The
     quick solves run first, each distinct setup once; ``quick`` holds them
     when they were started while measuring. The electrodes routed to 3-D
-    are solved after them, together, with the jobs ``work`` already holds
-    (the coupling table and scans of ``--precise``; :class:`PreciseWork`).
+    and the mutual pairs (:mod:`auditor.solve.mutual_jobs`) are solved
+    after them, together, with the jobs ``work`` already holds (the
+    coupling table and scans of ``--precise``; :class:`PreciseWork`).
     ``workers``: processes to solve in (None: automatic, see
     :func:`auditor.field.fanout.process_count`). ``progress`` is called as
     ``progress(sensor_name, done, total)``, in sensor order.
@@ -146,9 +148,13 @@ def solve_sensors(board: Board, sensors: tuple[Sensor, ...], config: Config, *,
     routes = _routes(sensors, quick, board, config, limits, mode)
     to_3d = {name for name, (route, _) in routes.items() if route.method == "precise"}
     out = quick.metrics(lambda name: None if name in to_3d else in_order.finish(name))
-    out.update(_precise_all(sensors, to_3d, routes, out, board, config,
-                            work or PreciseWork(workers), in_order.finish))
-    pairs = mutual_metrics(sensors, board, config, limits, mode)
+    work = work or PreciseWork(workers)
+    context = PairContext(board, sensors, config, limits, mode)
+    plans = plan_pairs(sensors, mode)
+    queue_pairs(plans, work, context)
+    out.update(_precise_all(sensors, to_3d, routes, out, board, config, work,
+                            in_order.finish))
+    pairs = pair_metrics(plans, work.pairs(), context)
     for sensor in sensors:
         if sensor.kind == "mutual-rx":
             if sensor.name in pairs:
@@ -180,8 +186,8 @@ def _precise_all(sensors: tuple[Sensor, ...], names: set[str],
                  quick: Mapping[str, PadMetrics], board: Board, config: Config,
                  work: PreciseWork, finished: Callable[[str], None]) -> dict[str, PadMetrics]:
     """The electrodes routed to 3-D on the shared stack, run with whatever
-    else ``work`` holds (the quick estimate of each, when there is one, goes
-    in its notes)."""
+    else ``work`` holds (the mutual pairs among it; the quick estimate of
+    each electrode, when there is one, goes in its notes)."""
     for sensor in sensors:
         if sensor.name in names:
             work.add_electrode(sensor.name, _cells(sensor), partial(

@@ -10,26 +10,21 @@ the disk and ring, ``--precise`` solves every pair in 3-D.
 
 Keys of a keyboard repeat one footprint: pairs of equal copper up to a
 translation share one 3-D solve (as equal pads share one quick solve); the
-notes name the pair that was solved.
+notes name the pair that was solved. :func:`plan_pairs` decides all this
+from the geometry; :mod:`auditor.solve.mutual_jobs` runs the solves.
 """
 
 from __future__ import annotations
 
-from collections.abc import Mapping
-from dataclasses import replace
+from dataclasses import dataclass
 
 import shapely
 from shapely.affinity import translate
 from shapely.geometry import Polygon
 
-from auditor.config import Config
-from auditor.errors import UsageError
-from auditor.model.board import Board
-from auditor.model.results import PadMetrics
 from auditor.sensors.model import Sensor
-from auditor.solve.mutual import metrics_for_mutual, mutual_partner
+from auditor.solve.mutual import mutual_partner
 from auditor.solve.route import Method, Route, forced
-from auditor.solve.setup import pad_setup_for
 
 #: Copper share of its outline below which the inner electrode is no plate.
 MIN_SOLID_SHARE = 0.9
@@ -103,70 +98,39 @@ def _same_shape(a: tuple[str, str, shapely.Geometry, shapely.Geometry],
                for g, h in ((a[2], b[2]), (a[3], b[3])))
 
 
-def mutual_metrics(sensors: tuple[Sensor, ...], board: Board, config: Config,
-                   limits: Mapping[str, float | int | bool], mode: str
-                   ) -> dict[str, PadMetrics]:
-    """Metrics of every mutual receive electrode with a partner, by its route.
+@dataclass(frozen=True)
+class PairPlan:
+    """One receive electrode's pair, its route, and whose 3-D solve it shares.
 
-    3-D solves are shared by pairs of equal copper up to a translation (the
-    first pair by name is solved; the others' notes name it).
+    ``shares_with``: the receive electrode of the first pair (by name) of
+    equal copper up to a translation, when this pair is routed to 3-D and is
+    not that first pair; "" otherwise.
     """
-    out: dict[str, PadMetrics] = {}
-    solved: list[tuple[tuple[str, str, shapely.Geometry, shapely.Geometry], str,
-                       PadMetrics]] = []
+
+    rx: Sensor
+    tx: Sensor
+    route: Route
+    shares_with: str = ""
+
+
+def plan_pairs(sensors: tuple[Sensor, ...], mode: str) -> tuple[PairPlan, ...]:
+    """Every receive electrode with a partner, by name: route and sharing.
+
+    Geometry only (no solve): what runs is decided here, before any job is
+    queued, so that the 3-D solves can run beside the other 3-D jobs.
+    """
+    plans: list[PairPlan] = []
+    solved: list[tuple[tuple[str, str, shapely.Geometry, shapely.Geometry], str]] = []
     for rx in sorted((s for s in sensors if s.kind == "mutual-rx"), key=lambda s: s.name):
         tx = mutual_partner(rx, sensors)
         if tx is None:
             continue
         route = pair_route(rx, tx, mode)
-        quick = _quick(rx, tx, board, config, limits)
-        metrics = quick
+        shares_with = ""
         if route.method == "precise":
-            metrics = _precise(rx, tx, board, config, limits, sensors, quick, solved)
-        if metrics is not None:
-            out[rx.name] = metrics if metrics.method_reason else replace(
-                metrics, method_reason=route.reason)
-    return out
-
-
-def _quick(rx: Sensor, tx: Sensor, board: Board, config: Config,
-           limits: Mapping[str, float | int | bool]) -> PadMetrics | None:
-    """The disk-and-ring metrics, or None when the pair cannot be mapped onto
-    it (e.g. a transmit electrode larger than the ground's reach)."""
-    try:
-        return metrics_for_mutual(rx, tx, board, config, limits)
-    except UsageError:
-        return None
-
-
-def _precise(rx: Sensor, tx: Sensor, board: Board, config: Config,
-             limits: Mapping[str, float | int | bool], sensors: tuple[Sensor, ...],
-             quick: PadMetrics | None,
-             solved: list[tuple[tuple[str, str, shapely.Geometry, shapely.Geometry], str,
-                                PadMetrics]]) -> PadMetrics | None:
-    """The pair's 3-D metrics, from an equal pair's solve when there is one
-    (None when neither model can take the pair)."""
-    # Imported here for start-up speed: the 3-D solver loads scipy.interpolate.
-    from auditor.solve.mutual_precise import metrics_for_mutual_precise
-
-    key = _shape_key(rx, tx)
-    for other_key, name, metrics in solved:
-        if _same_shape(key, other_key):
-            own = f"mutual pair {tx.name} -> {rx.name}: " + metrics.notes[0].split(": ", 1)[1]
-            return replace(metrics, notes=(own, f"3-D solve shared with {name} (same copper "
-                                                "up to a translation; its surroundings were "
-                                                "solved)", *metrics.notes[1:3]),
-                           quick_cp_pad_pf=quick.cp_pad_pf if quick else None,
-                           quick_cp_total_pf=quick.cp_total_pf if quick else None,
-                           quick_delta_c_pf=quick.delta_c_pf if quick else None)
-    mapped = pad_setup_for(rx, board, config, limits)
-    try:
-        metrics = metrics_for_mutual_precise(rx, tx, board, config, mapped, sensors, quick)
-    except (UsageError, KeyError) as exc:
-        if quick is None:
-            return None
-        return replace(quick, notes=(f"3-D solve of the pair not possible ({exc}); disk and "
-                                     "ring estimate shown", *quick.notes),
-                       method_reason=f"3-D solve not possible ({exc})")
-    solved.append((key, rx.name, metrics))
-    return metrics
+            key = _shape_key(rx, tx)
+            shares_with = next((name for other, name in solved if _same_shape(key, other)), "")
+            if not shares_with:
+                solved.append((key, rx.name))
+        plans.append(PairPlan(rx, tx, route, shares_with))
+    return tuple(plans)

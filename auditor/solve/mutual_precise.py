@@ -100,12 +100,22 @@ def solve_pair_on_board(rx: Sensor, tx: Sensor, board: Board, config: Config,
     return solved, gap_share_pf(tx_copper, rx_copper, stack.medium, WINDOW_CELL_MM, fine), fine
 
 
+#: Why a 3-D pair shows no disk-and-ring estimate: the model was tried and
+#: cannot take the pair, or (automatic mode) it was not computed, as its
+#: answer would not be used.
+NOT_MAPPED = "none, the pair does not map onto the disk-and-ring model"
+NOT_COMPUTED = ("not computed, the automatic mode sent the pair to 3-D (--precise computes "
+                "it beside the 3-D answer)")
+
+
 def metrics_for_mutual_precise(rx: Sensor, tx: Sensor, board: Board, config: Config,
                                mapped: FieldInput, others: tuple[Sensor, ...],
-                               quick: PadMetrics | None) -> PadMetrics:
+                               quick: PadMetrics | None, no_quick: str = NOT_MAPPED
+                               ) -> PadMetrics:
     """Cm and its drop under the finger from the 3-D solve, in the PadMetrics
     slots as the quick pair model fills them (``cp_pad_pf`` is Cm); ``quick``:
-    the disk-and-ring answer beside it (None when the pair does not map onto it)."""
+    the disk-and-ring answer beside it, or None and ``no_quick`` says why
+    (not computed, or the pair does not map onto it)."""
     solved, gap_share, fine = solve_pair_on_board(rx, tx, board, config, mapped, others)
     cm = solved.cm_pf + gap_share
     delta = solved.delta_cm_pf
@@ -116,16 +126,18 @@ def metrics_for_mutual_precise(rx: Sensor, tx: Sensor, board: Board, config: Con
              f"gaps refined ({fine:.3g} mm cells, extrapolated: {gap_share:+.3f} pF of Cm)",
              f"finger floating on the touch face over the pair's centre, "
              f"{mapped.setup.body_to_earth_pf:g} pF body to earth",
-             *_versus(cm, delta, quick))
+             *_versus(cm, delta, quick, no_quick))
     return PadMetrics(cm, 0.0, cm, delta, delta / cm if cm else 0.0, "precise", notes,
                       quick_cp_pad_pf=quick.cp_pad_pf if quick else None,
                       quick_cp_total_pf=quick.cp_total_pf if quick else None,
-                      quick_delta_c_pf=quick.delta_c_pf if quick else None)
+                      quick_delta_c_pf=quick.delta_c_pf if quick else None,
+                      quick_missing="" if quick else no_quick)
 
 
-def _versus(cm: float, delta: float, quick: PadMetrics | None) -> tuple[str, ...]:
+def _versus(cm: float, delta: float, quick: PadMetrics | None,
+            no_quick: str) -> tuple[str, ...]:
     if quick is None:
-        return ("no disk-and-ring estimate: the pair does not map onto it",)
+        return (f"disk-and-ring estimate: {no_quick}",)
     return tuple(_versus_one(label, precise, estimate) for label, precise, estimate in
                  (("Cm", cm, quick.cp_pad_pf), ("ΔCm", delta, quick.delta_c_pf)))
 

@@ -76,6 +76,24 @@ def test_method_table_gives_the_quick_estimate_and_the_change() -> None:
     assert "Solve method" not in quick_text and "Pad-to-pad" not in quick_text
 
 
+def test_a_precise_result_without_its_quick_estimate_says_why() -> None:
+    """Text and JSON say the estimate was not computed, and show no number for it."""
+    reason = "not computed, the automatic mode sent the pair to 3-D"
+    report = sample.precise_report()
+    sensors = tuple(dataclasses.replace(r, metrics=dataclasses.replace(
+        r.metrics, quick_cp_pad_pf=None, quick_cp_total_pf=None, quick_delta_c_pf=None,
+        quick_missing=reason)) if r.sensor.name == "SW_POWER" and r.metrics else r
+        for r in report.sensors)
+    report = dataclasses.replace(report, sensors=sensors)
+    text = " ".join(_text(report).split())
+    assert f"SW_POWER: quick estimate {reason}" in text
+    assert "SW_POWER precise 10.10 0.620" in text
+    metrics = {s["name"]: s["metrics"] for s in json.loads(dumps(to_document(report)))["sensors"]}
+    assert "quick" not in metrics["SW_POWER"]
+    assert metrics["SW_POWER"]["quick_missing"] == reason
+    assert "quick_missing" not in metrics["PROX"]
+
+
 def test_quick_difference_of_metrics() -> None:
     m = PadMetrics(1.0, 0.5, 1.5, 0.2, 0.2 / 1.5, "precise", (), 1.1, 1.6, 0.25)
     cp_change, delta_change = m.quick_difference or (0.0, 0.0)

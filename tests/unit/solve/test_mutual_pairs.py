@@ -83,11 +83,13 @@ def test_disk_and_ring_misses_interleaved_combs() -> None:
     against the ring model's one circle of gap. Measured: 3-D Cm 3.01 pF and
     ΔCm 0.178 pF, the disk and ring 1.29-1.33 pF and 0.112-0.113 pF (the 3-D
     solve is checked in test_mutual_precise.py). The 3-D Cm is at least
-    twice the quick one."""
-    auto = _metrics("comb-keys", "auto")
-    for metrics in auto.values():
-        assert metrics.quick_cp_pad_pf is not None
-        assert metrics.cp_pad_pf > 2.0 * metrics.quick_cp_pad_pf
+    twice the quick one (``--quick``, and the estimate ``--precise`` shows
+    beside its answer)."""
+    auto, quick, precise = (_metrics("comb-keys", mode) for mode in ("auto", "quick", "precise"))
+    for name, metrics in auto.items():
+        assert metrics.cp_pad_pf == precise[name].cp_pad_pf  # the same 3-D solve
+        assert metrics.cp_pad_pf > 2.0 * quick[name].cp_pad_pf
+        assert precise[name].quick_cp_pad_pf == quick[name].cp_pad_pf
         assert metrics.delta_c_pf > 0
 
 
