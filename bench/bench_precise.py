@@ -40,9 +40,16 @@ from typing import TypeVar
 
 import numpy as np
 import shapely
-from shapely.geometry import Point, box
+from shapely.geometry import LineString, Point, box
 
-from auditor.field.precise import Conductor, LayeredMedium, solve_capacitance, solve_precise
+from auditor.field.precise import (
+    Conductor,
+    Finger,
+    LayeredMedium,
+    slider_scan,
+    solve_capacitance,
+    solve_precise,
+)
 from auditor.field.precise.cells import grid_around
 from auditor.field.precise.operator import CellOperator, cell_operator, level_kernels
 
@@ -258,6 +265,50 @@ def window_case() -> None:
     print("  C [pF]:", np.array2string(matrix.array(), precision=4))
 
 
+#: A long slider row, as on real boards: 32 strips of 15 x 42 mm at 17 mm
+#: pitch, no plane under them, 2 mm overlay. The goal (a --precise audit of
+#: such a board in a few minutes on one core, < 300 MB) is the scan's share.
+ROW_STACK = LayeredMedium(((2.0, 3.0), (1.6, 4.4)))
+ROW_GOAL_CPU_S = 120.0
+
+
+def long_row(strips: int = 32) -> None:
+    """The finger scanned along the row in neighbour windows (0.75 mm cells,
+    10 mm finger, 3 steps per pitch), and on a 12-strip row the windows
+    against the whole solve: CPU ratio and the largest change of ΔC."""
+    def row(count: int) -> tuple[list[Conductor], LineString]:
+        return ([Conductor(f"s{i:02d}", box(17.0 * i, 0, 17.0 * i + 15, 42), 1)
+                 for i in range(count)], LineString([(-1.0, 21), (17.0 * count - 1, 21)]))
+
+    segments, path = row(strips)
+    tracemalloc.start()
+    start = time.process_time()
+    scan = slider_scan(segments, Finger(5.0, 0), path, 17.0 / 3, ROW_STACK, 0.75)
+    cpu = time.process_time() - start
+    _, peak = tracemalloc.get_traced_memory()
+    tracemalloc.stop()
+    print(f"{strips}-strip row scan in windows: {len(scan.positions_mm)} finger positions, "
+          f"CPU {cpu:.1f} s (goal {ROW_GOAL_CPU_S:g} s, ratio {cpu / ROW_GOAL_CPU_S:.2f}), "
+          f"peak traced memory {peak / 2**20:.0f} MB")
+    short, short_path = row(12)
+    timed_whole, whole = _cpu(lambda: slider_scan(short, Finger(5.0, 0), short_path, 17.0 / 3,
+                                                  ROW_STACK, 0.75, budget=10**12))
+    timed_split, split = _cpu(lambda: slider_scan(short, Finger(5.0, 0), short_path,
+                                                  17.0 / 3, ROW_STACK, 0.75, budget=0))
+    largest = max(max(abs(a - b) for a, b in zip(w, p, strict=True))
+                  for w, p in zip(whole.delta_pf, split.delta_pf, strict=True))
+    peak_delta = max(max(w) for w in whole.delta_pf)
+    print(f"12-strip row: whole CPU {timed_whole:.1f} s, windows {timed_split:.1f} s "
+          f"(ratio {timed_split / timed_whole:.2f}); largest change of ΔC "
+          f"{100 * largest / peak_delta:.3f} % of the largest ΔC")
+
+
+def _cpu(run: Callable[[], T]) -> tuple[float, T]:
+    start = time.process_time()
+    result = run()
+    return time.process_time() - start, result
+
+
 def sixteen_electrodes() -> None:
     """4 x 4 pads 8 mm square at 10 mm pitch inside a pour, 44 x 44 mm, 0.25 mm cells."""
     pads = [box(2 + 10 * i, 2 + 10 * j, 10 + 10 * i, 10 + 10 * j)
@@ -337,9 +388,14 @@ def main() -> None:
     parser.add_argument("--against", type=Path,
                         help="another checkout to time the demo audit against, alternately")
     parser.add_argument("--demo-only", action="store_true", help="only the demo audit")
+    parser.add_argument("--row-only", action="store_true",
+                        help="only the long slider row (no demo audit)")
     parser.add_argument("--jobs", default="1,2", metavar="N,N",
                         help="process counts to time the demo audit with (default 1,2)")
     args = parser.parse_args()
+    if args.row_only:
+        long_row()
+        return
     print(f"load average before the run: {os.getloadavg()[0]:.2f} on {os.cpu_count()} CPUs "
           "(other work on the machine inflates wall times; CPU times are steadier)")
     demo_audit(args.repeat, args.against, [int(n) for n in args.jobs.split(",")])
@@ -347,6 +403,7 @@ def main() -> None:
     if args.demo_only:
         return
     window_case()
+    long_row()
     sixteen_electrodes()
     dense_against_fft()
 

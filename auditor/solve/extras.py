@@ -13,19 +13,27 @@
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable
 from functools import partial
 
+import numpy as np
 import shapely
-from shapely.geometry import LineString
+from shapely.geometry import LineString, Point
 
 from auditor.config import Config
 from auditor.field.precise import (
     Conductor,
     Finger,
-    coupling_between,
     slider_scan,
     solve_variants,
+)
+from auditor.field.precise.windows import (
+    COUPLING_BLOCK_ELECTRODES,
+    COUPLING_REACH_MM,
+    WHOLE_SOLVE_BUDGET,
+    coupling_blocks,
+    is_split,
 )
 from auditor.model.board import Board
 from auditor.model.results import CouplingTable, PreciseExtras, SegmentScan
@@ -47,25 +55,77 @@ def _electrodes(sensors: tuple[Sensor, ...], stack: PreciseStack) -> list[Conduc
 
 
 def coupling_table(board: Board, sensors: tuple[Sensor, ...], config: Config,
-                   cell_mm: float = COUPLING_CELL_MM) -> CouplingTable | None:
-    """Crosstalk among the self-capacitance electrodes (None with fewer than two)."""
+                   cell_mm: float = COUPLING_CELL_MM, budget: int = WHOLE_SOLVE_BUDGET,
+                   block: int = COUPLING_BLOCK_ELECTRODES,
+                   reach_mm: float = COUPLING_REACH_MM) -> CouplingTable | None:
+    """Crosstalk among the self-capacitance electrodes (None with fewer than two).
+
+    One solve, or, when that is larger than ``budget`` allows
+    (:func:`auditor.field.precise.windows.is_split`), one per ``block``
+    neighbouring electrodes with those within ``reach_mm`` of them
+    (:func:`auditor.field.precise.windows.coupling_blocks`), pairs farther
+    apart taken as uncoupled.
+    """
     pads = tuple(s for s in sensors if s.kind in SELF_KINDS and s.area_mm2 > 0)
     if len(pads) < 2:
         return None
     stack = stack_for(board, config)
     electrodes = _electrodes(pads, stack)
-    union = shapely.union_all([s.geometry for s in pads])
+    ground_net = next((s.surroundings.ground_net for s in pads if s.surroundings), "")
+    window = window_around(shapely.union_all([c.geometry for c in electrodes]),
+                           COUPLING_MARGIN_MM)
+    x0, y0, x1, y1 = window.bounds
+    if not is_split(int((x1 - x0) * (y1 - y0) / cell_mm ** 2), len(electrodes), budget):
+        values = _maxwell(board, stack, electrodes, [], ground_net, cell_mm, None)
+    else:
+        values = np.zeros((len(electrodes), len(electrodes)))
+        for own, members in coupling_blocks([c.geometry for c in electrodes], block,
+                                             reach_mm):
+            solved = [electrodes[k] for k in members]
+            # The electrodes next beyond the solved ones stay in, at 0 V: they
+            # screen the outermost ones as in the whole solve.
+            rest = [c for k, c in enumerate(electrodes) if k not in set(members.tolist())
+                    and min(c.geometry.distance(e.geometry) for e in solved) <= reach_mm]
+            part = _maxwell(board, stack, solved, rest, ground_net, cell_mm, (x0, y0))
+            values[np.ix_(own, members)] = part[np.searchsorted(members, own)]
+    self_pf = np.diag(values)
+    crosstalk = np.diag(self_pf) - values
+    return CouplingTable(tuple(c.name for c in electrodes), _rows(crosstalk),
+                         _rows(crosstalk / self_pf[:, None]), cell_mm)
+
+
+def _maxwell(board: Board, stack: PreciseStack, electrodes: list[Conductor],
+             held: list[Conductor], ground_net: str, cell_mm: float,
+             origin: tuple[float, float] | None) -> np.ndarray:
+    """Maxwell matrix of ``electrodes`` (in their order) with the ``held``
+    electrodes at 0 V and the device ground within the margin of both.
+    ``origin``: a corner of a grid this one's cells must line up with."""
+    union = shapely.union_all([c.geometry for c in [*electrodes, *held]])
     window = window_around(union, COUPLING_MARGIN_MM)
     near = union.buffer(COUPLING_MARGIN_MM).intersection(window)
-    ground_net = next((s.surroundings.ground_net for s in pads if s.surroundings), "")
-    clear = {layer: shapely.union_all([s.geometry for s in pads if s.layer == layer])
-             for layer in {s.layer for s in pads}}
-    grounds = ground_conductors(board, stack, ground_net, near, {}, clear)
+    clear = {level: shapely.union_all([c.geometry for c in electrodes if c.level == level])
+             for level in {c.level for c in electrodes}}
+    layer_of = {level: layer for layer, level in stack.copper_levels.items()}
+    others: dict[str, list[shapely.Geometry]] = {}
+    for conductor in held:
+        others.setdefault(layer_of[conductor.level], []).append(conductor.geometry)
+    grounds = ground_conductors(board, stack, ground_net, near, others,
+                                {layer_of[level]: copper for level, copper in clear.items()})
     names = [c.name for c in electrodes]
-    (solved,) = solve_variants(electrodes + grounds, [()], stack.medium, cell_mm, driven=names)
-    coupling = coupling_between(solved.matrix, names)
-    return CouplingTable(coupling.names, coupling.crosstalk_pf, coupling.fraction_of_cp,
-                         cell_mm)
+    corner = None
+    if origin is not None:
+        x0, y0 = window.bounds[:2]
+        corner = Point(origin[0] + math.floor((x0 - origin[0]) / cell_mm) * cell_mm,
+                       origin[1] + math.floor((y0 - origin[1]) / cell_mm) * cell_mm)
+    (solved,) = solve_variants(electrodes + grounds, [()], stack.medium, cell_mm,
+                               driven=names, window=corner)
+    matrix = solved.matrix
+    index = [matrix.index(name) for name in names]
+    return matrix.array()[np.ix_(index, index)]
+
+
+def _rows(values: np.ndarray) -> tuple[tuple[float, ...], ...]:
+    return tuple(tuple(float(v) for v in row) for row in values)
 
 
 def _groups(sensors: tuple[Sensor, ...]) -> dict[tuple[str, str], list[Sensor]]:

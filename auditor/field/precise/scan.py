@@ -7,18 +7,27 @@ self capacitance ``C_ii``), or floating with a body network, reduced by
 
 from __future__ import annotations
 
+import math
 from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
 import shapely
-from shapely.geometry import LineString, Point
+from numpy.typing import NDArray
+from shapely.geometry import LineString, Point, Polygon, box
 
 from auditor.errors import UsageError
 from auditor.field.circuit import touch_network
 from auditor.field.matrix import CapacitanceMatrix
 from auditor.field.precise.medium import LayeredMedium
 from auditor.field.precise.solve import Conductor, solve_variants
+from auditor.field.precise.windows import (
+    SCAN_REACH_SEGMENTS,
+    WHOLE_SOLVE_BUDGET,
+    WINDOW_MARGIN_MM,
+    is_split,
+    scan_windows,
+)
 
 FINGER = "finger"
 
@@ -100,7 +109,8 @@ class BodyCoupling:
 def slider_scan(segments: Sequence[Conductor], finger: Finger, path: LineString,
                 step_mm: float, medium: LayeredMedium, cell_mm: float, *,
                 others: Sequence[Conductor] = (), dead_fraction: float = 0.1,
-                body: BodyCoupling | None = None) -> SliderScan:
+                body: BodyCoupling | None = None, budget: int = WHOLE_SOLVE_BUDGET,
+                reach_segments: int = SCAN_REACH_SEGMENTS) -> SliderScan:
     """Step ``finger`` along ``path`` over ``segments`` and analyse the response.
 
     Parameters
@@ -124,6 +134,13 @@ def slider_scan(segments: Sequence[Conductor], finger: Finger, path: LineString,
         segment's capacitance is the reduced one seen against the device
         ground (segments held at device ground); otherwise the finger is
         grounded and the change is that of the Maxwell ``C_ii``.
+    budget, reach_segments:
+        When the whole scan's grid cells times right-hand sides exceed
+        ``budget``, it is solved in windows of
+        :mod:`auditor.field.precise.windows`, each with ``reach_segments``
+        segments beyond its block on each side (a segment outside a
+        position's window takes no change there; ``matrices`` then hold the
+        window's conductors only).
     """
     if not step_mm > 0.0 or path.length <= 0.0:
         raise UsageError("slider scan needs a path of some length and a step > 0 mm")
@@ -133,24 +150,86 @@ def slider_scan(segments: Sequence[Conductor], finger: Finger, path: LineString,
         positions = positions[:-1]
     disks = [Point(path.interpolate(s).coords[0]).buffer(finger.radius_mm, quad_segs=64)
              for s in positions]
+    centres = np.array([path.project(c.geometry.centroid) for c in segments])
     fixed = list(segments) + list(others)
-    window = shapely.union_all([c.geometry for c in fixed] + disks).envelope
+    x0, y0, x1, y1 = shapely.total_bounds([c.geometry for c in fixed] + disks)
+    grid_cells = int((x1 - x0) * (y1 - y0) / (cell_mm * cell_mm))
+    if is_split(grid_cells, len(segments) * (len(disks) + 1), budget):
+        windows = scan_windows(centres, positions, period, reach=reach_segments)
+        deltas, matrices = _windowed(segments, others, disks, windows, finger.level, medium,
+                                     cell_mm, body, (x0, y0))
+    else:
+        deltas, matrices = _scanned(segments, others, disks, finger.level, medium, cell_mm,
+                                    body)
+    return _analysed([c.name for c in segments], centres, positions, deltas, dead_fraction,
+                     matrices, period)
+
+
+def _scanned(segments: Sequence[Conductor], others: Sequence[Conductor],
+             disks: Sequence[shapely.Geometry], level: int, medium: LayeredMedium,
+             cell_mm: float, body: BodyCoupling | None, corner: Point | None = None
+             ) -> tuple[np.ndarray, list[CapacitanceMatrix]]:
+    """Each segment's change with the finger on each disk, in one solve
+    (``corner``: a point the grid must reach, to align it with another)."""
+    fixed = list(segments) + list(others)
+    window = shapely.union_all([c.geometry for c in fixed] + list(disks)
+                               + ([corner] if corner is not None else [])).envelope
     names = [c.name for c in segments]
     # The baseline and every finger position in one batched solve: the segments
     # are meshed once and share one operator (docs/precise-mode.md, Speed).
-    variants = [()] + [(Conductor(FINGER, disk, finger.level),) for disk in disks]
+    variants = [()] + [(Conductor(FINGER, disk, level),) for disk in disks]
     # A grounded finger needs only the segments' own columns; the body network
     # reduces the whole matrix.
     driven = names if body is None else None
     baseline, *touched = (s.matrix for s in solve_variants(fixed, variants, medium, cell_mm,
                                                            window=window, driven=driven))
     base_self = _segment_self_pf(baseline, names, body, touched=False)
-    matrices = touched
     deltas = [_segment_self_pf(matrix, names, body, touched=True) - base_self
               for matrix in touched]
-    centres = np.array([path.project(c.geometry.centroid) for c in segments])
-    return _analysed(names, centres, positions, np.array(deltas), dead_fraction, matrices,
-                     period)
+    return np.array(deltas).reshape(len(disks), len(names)), touched
+
+
+def _windowed(segments: Sequence[Conductor], others: Sequence[Conductor],
+              disks: Sequence[shapely.Geometry],
+              windows: list[tuple[NDArray[np.int64], NDArray[np.int64]]], level: int,
+              medium: LayeredMedium, cell_mm: float, body: BodyCoupling | None,
+              origin: tuple[float, float]) -> tuple[np.ndarray, list[CapacitanceMatrix]]:
+    """:func:`_scanned` per window: its segments solved, the copper around
+    them (other segments included) clipped to the window and held at 0 V.
+    Each window's grid starts on a line of the whole scan's grid (from
+    ``origin``), so the copper is cut into the same cells as in one solve."""
+    deltas = np.zeros((len(disks), len(segments)))
+    matrices: list[CapacitanceMatrix | None] = [None] * len(disks)
+    for taken, wanted in windows:
+        own = [segments[i] for i in wanted]
+        near = [disks[n] for n in taken]
+        x0, y0, x1, y1 = shapely.total_bounds([c.geometry for c in own] + near)
+        frame = box(x0 - WINDOW_MARGIN_MM, y0 - WINDOW_MARGIN_MM, x1 + WINDOW_MARGIN_MM,
+                    y1 + WINDOW_MARGIN_MM)
+        rest = [c for k, c in enumerate(segments) if k not in set(wanted.tolist())]
+        held = _clipped([*rest, *others], frame)
+        corner = Point(origin[0] + math.floor((x0 - WINDOW_MARGIN_MM - origin[0]) / cell_mm)
+                       * cell_mm,
+                       origin[1] + math.floor((y0 - WINDOW_MARGIN_MM - origin[1]) / cell_mm)
+                       * cell_mm)
+        part, touched = _scanned(own, held, near, level, medium, cell_mm, body, corner)
+        deltas[np.ix_(taken, wanted)] = part
+        for n, matrix in zip(taken, touched, strict=True):
+            matrices[n] = matrix
+    return deltas, [m for m in matrices if m is not None]
+
+
+def _clipped(conductors: Sequence[Conductor], frame: Polygon) -> list[Conductor]:
+    """The conductors' polygons inside ``frame`` (those with any)."""
+    out = []
+    for conductor in conductors:
+        if not conductor.geometry.intersects(frame):
+            continue
+        parts = [g for g in shapely.get_parts(conductor.geometry.intersection(frame))
+                 if g.geom_type == "Polygon" and g.area > 1e-9]
+        if parts:
+            out.append(Conductor(conductor.name, shapely.MultiPolygon(parts), conductor.level))
+    return out
 
 
 def _segment_self_pf(matrix: CapacitanceMatrix, names: list[str], body: BodyCoupling | None,
